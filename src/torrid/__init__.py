@@ -1,0 +1,30 @@
+"""torrid: a toy shallow-water circulation model for tidally locked hot gas giants.
+
+The package is layered (see DEVELOPERS.md): ``torrid.physics`` holds pure array functions,
+``torrid.io`` configuration and files, ``torrid.workflow`` the run driver, and
+``torrid.interface`` the command line and plots. The names re-exported here are the Python API.
+"""
+
+from importlib.metadata import PackageNotFoundError, version as _version
+
+try:
+    __version__ = _version("torrid")
+except PackageNotFoundError:  # running from a source tree that is not installed
+    __version__ = "0.0.0+unknown"
+
+
+class TorridWarning(UserWarning):
+    """Warnings issued by torrid itself (turned into errors in the test suite)."""
+
+
+_API = ("build_case_config", "run")
+__all__ = ["__version__", "TorridWarning", *_API]
+
+
+def __getattr__(name):
+    """Load the Python API on first use, so ``import torrid.physics`` stays light."""
+    if name in _API:
+        from torrid import api
+
+        return getattr(api, name)
+    raise AttributeError(f"module 'torrid' has no attribute {name!r}")

@@ -1,0 +1,1 @@
+"""Interface layer: command line, plots."""

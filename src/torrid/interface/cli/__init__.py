@@ -1,0 +1,55 @@
+"""The ``torrid`` command line: one module per subcommand group, this module dispatches.
+
+Errors the user can fix (bad options, bad files, existing outputs) are reported as one line,
+``torrid: error: ...``, with exit status 2 and no traceback (``--debug`` shows it).
+"""
+
+from __future__ import annotations
+
+import argparse
+import sys
+
+from torrid import __version__
+from torrid.interface.cli import plot as plot_cmd
+from torrid.interface.cli import run as run_cmd
+
+SUBCOMMANDS = {"run": run_cmd, "plot": plot_cmd}
+USER_ERRORS = (ValueError, FileExistsError, FileNotFoundError, KeyError)
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="torrid",
+        description="A toy shallow-water circulation model for tidally locked hot gas giants, "
+                    "and the tools that turn its runs into predictions.",
+        epilog="Run 'torrid COMMAND --help' for the options of a command.",
+    )
+    parser.add_argument("--version", action="version", version=f"torrid {__version__}")
+    parser.add_argument("--debug", action="store_true", help="show full tracebacks on errors")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND", required=True)
+    for name, module in SUBCOMMANDS.items():
+        module.add_parser(sub)
+        sub.choices[name].add_argument("--debug", action="store_true", default=argparse.SUPPRESS,
+                                       help="show full tracebacks on errors")
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Entry point of the ``torrid`` console script; returns the exit status."""
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    try:
+        return int(args.handler(args) or 0)
+    except USER_ERRORS as err:
+        if args.debug:
+            raise
+        message = str(err).strip().splitlines()[0] if str(err).strip() else type(err).__name__
+        print(f"torrid: error: {message}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print("torrid: interrupted", file=sys.stderr)
+        return 130
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

@@ -1,0 +1,5 @@
+import sys
+
+from torrid.interface.cli import main
+
+sys.exit(main())

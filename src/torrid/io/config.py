@@ -1,0 +1,238 @@
+"""Run configuration: typed, validated once on construction, frozen.
+
+A configuration is a tree of frozen dataclasses, one per section (``planet``, ``numerics``,
+``run``, ``case``). ``ModelConfig.from_dict`` builds one from plain data (a parsed TOML file or
+JSON from a run file's attributes), reporting the first problem as a one-line
+:class:`ConfigError` that names the key, the value and what is allowed, and suggests the
+closest known key for a misspelt one. ``to_dict`` gives the inverse (JSON-safe).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import difflib
+import math
+from dataclasses import dataclass, field
+from typing import Any
+
+SECONDS_PER_DAY = 86400.0
+
+
+class ConfigError(ValueError):
+    """A configuration value or key that is not allowed (the message is one line)."""
+
+
+def _number(section: str, key: str, value, *, minimum=None, maximum=None, strict_min=False,
+            allow_inf=False, integer=False):
+    """Check one numeric value; return it as float/int or raise ConfigError."""
+    where = f"{section}.{key}"
+    if isinstance(value, bool) or not isinstance(value, (int, float)):
+        kind = "an integer" if integer else "a number"
+        raise ConfigError(f"{where} = {value!r}: must be {kind}")
+    if integer and not (isinstance(value, int) or float(value).is_integer()):
+        raise ConfigError(f"{where} = {value!r}: must be an integer")
+    if math.isnan(value) or (math.isinf(value) and not allow_inf):
+        raise ConfigError(f"{where} = {value!r}: must be a finite number")
+    if minimum is not None and (value <= minimum if strict_min else value < minimum):
+        op = ">" if strict_min else ">="
+        raise ConfigError(f"{where} = {value!r}: must be {op} {minimum}")
+    if maximum is not None and value > maximum:
+        raise ConfigError(f"{where} = {value!r}: must be <= {maximum}")
+    return int(value) if integer else float(value)
+
+
+@dataclass(frozen=True)
+class PlanetConfig:
+    """The rotating sphere.
+
+    Parameters
+    ----------
+    radius_m : float
+        Planet radius a (m).
+    rotation_period_days : float
+        Sidereal rotation period (days of 86400 s); negative for retrograde spin
+        (the rotation vector points to the grid's south pole); ``inf`` for no rotation.
+    gravity_m_s2 : float
+        (Reduced) gravity g (m s^-2); converts geopotential to thickness.
+    """
+
+    radius_m: float = 6.37122e6
+    rotation_period_days: float = 2 * math.pi / 7.292e-5 / SECONDS_PER_DAY
+    gravity_m_s2: float = 9.80616
+
+    def __post_init__(self):
+        s = "planet"
+        object.__setattr__(self, "radius_m", _number(s, "radius_m", self.radius_m, minimum=0,
+                                                     strict_min=True))
+        p = _number(s, "rotation_period_days", self.rotation_period_days, allow_inf=True)
+        if p == 0:
+            raise ConfigError("planet.rotation_period_days = 0: must be non-zero (inf: no rotation)")
+        object.__setattr__(self, "rotation_period_days", p)
+        object.__setattr__(self, "gravity_m_s2", _number(s, "gravity_m_s2", self.gravity_m_s2,
+                                                         minimum=0, strict_min=True))
+
+    @property
+    def rotation_rate_s(self) -> float:
+        """Signed angular rotation rate Omega (rad s^-1)."""
+        return 2 * math.pi / (self.rotation_period_days * SECONDS_PER_DAY)
+
+
+@dataclass(frozen=True)
+class NumericsConfig:
+    """Resolution, dissipation and time step.
+
+    Parameters
+    ----------
+    truncation : int
+        Triangular truncation N (T42, T85, ...); the grid is the alias-free Gauss grid.
+    hyperdiffusion_days : float or None
+        E-folding time (days) of the del^(2p) hyperdiffusion at wavenumber N; ``inf`` is off;
+        ``None`` takes the case's documented default.
+    hyperdiffusion_order : int or None
+        p in del^(2p) (>= 1; 4 means del^8); ``None`` takes the case's default.
+    time_step_s : float or None
+        Time step (s); ``None`` chooses it from ``courant_number``.
+    courant_number : float
+        Advective Courant number |v|_max dt sqrt(N (N + 1)) / a for the automatic step.
+    threads : int
+        Transform threads (1 is fastest below T170 on two cores).
+    """
+
+    truncation: int = 42
+    hyperdiffusion_days: float | None = None
+    hyperdiffusion_order: int | None = None
+    time_step_s: float | None = None
+    courant_number: float = 1.0
+    threads: int = 1
+
+    def __post_init__(self):
+        s, set_ = "numerics", object.__setattr__
+        set_(self, "truncation", _number(s, "truncation", self.truncation, minimum=1,
+                                         maximum=1000, integer=True))
+        if self.hyperdiffusion_days is not None:
+            set_(self, "hyperdiffusion_days", _number(s, "hyperdiffusion_days",
+                                                      self.hyperdiffusion_days, minimum=0,
+                                                      strict_min=True, allow_inf=True))
+        if self.hyperdiffusion_order is not None:
+            set_(self, "hyperdiffusion_order", _number(s, "hyperdiffusion_order",
+                                                       self.hyperdiffusion_order, minimum=1,
+                                                       maximum=8, integer=True))
+        if self.time_step_s is not None:
+            set_(self, "time_step_s", _number(s, "time_step_s", self.time_step_s, minimum=0,
+                                              strict_min=True))
+        set_(self, "courant_number", _number(s, "courant_number", self.courant_number,
+                                             minimum=0, strict_min=True, maximum=1.5))
+        set_(self, "threads", _number(s, "threads", self.threads, minimum=1, maximum=256,
+                                      integer=True))
+
+
+@dataclass(frozen=True)
+class RunConfig:
+    """Length and output schedule (simulated time).
+
+    Parameters
+    ----------
+    days : float
+        Simulated days to run.
+    output_interval_days : float
+        Interval between written snapshots (days); the initial state is written at 0.
+    """
+
+    days: float = 5.0
+    output_interval_days: float = 1.0
+
+    def __post_init__(self):
+        s = "run"
+        object.__setattr__(self, "days", _number(s, "days", self.days, minimum=0,
+                                                 strict_min=True, maximum=1e6))
+        object.__setattr__(self, "output_interval_days",
+                           _number(s, "output_interval_days", self.output_interval_days,
+                                   minimum=0, strict_min=True))
+
+
+@dataclass(frozen=True)
+class CaseConfig:
+    """Which built-in initial state (a standard test case) to start from.
+
+    Parameters
+    ----------
+    name : str
+        One of :data:`torrid.physics.cases.CASES`.
+    alpha_rad : float
+        Williamson case 2 only: angle (rad) between the flow's axis and the grid's pole.
+    """
+
+    name: str = "williamson6"
+    alpha_rad: float = 0.0
+
+    def __post_init__(self):
+        from torrid.physics.cases import CASES
+
+        if self.name not in CASES:
+            raise ConfigError(f"case.name = {self.name!r}: must be one of {', '.join(CASES)}")
+        a = _number("case", "alpha_rad", self.alpha_rad, minimum=-math.pi, maximum=math.pi)
+        if a != 0 and self.name != "williamson2":
+            raise ConfigError(f"case.alpha_rad = {a!r}: only williamson2 takes a tilt angle")
+        object.__setattr__(self, "alpha_rad", a)
+
+
+_SECTIONS = {"planet": PlanetConfig, "numerics": NumericsConfig, "run": RunConfig,
+             "case": CaseConfig}
+
+
+@dataclass(frozen=True)
+class ModelConfig:
+    """A complete, validated run configuration (see the section classes for the keys)."""
+
+    case: CaseConfig = field(default_factory=CaseConfig)
+    planet: PlanetConfig = field(default_factory=PlanetConfig)
+    numerics: NumericsConfig = field(default_factory=NumericsConfig)
+    run: RunConfig = field(default_factory=RunConfig)
+
+    def __post_init__(self):
+        for name, cls in _SECTIONS.items():
+            if not isinstance(getattr(self, name), cls):
+                raise ConfigError(f"{name}: must be a {cls.__name__}")
+        n = self.numerics
+        if n.time_step_s is not None and n.time_step_s > self.run.output_interval_days * SECONDS_PER_DAY:
+            raise ConfigError(f"numerics.time_step_s = {n.time_step_s!r}: must not exceed "
+                              f"run.output_interval_days ({self.run.output_interval_days} days)")
+
+    def to_dict(self) -> dict[str, dict[str, Any]]:
+        """Plain nested dict (JSON-safe apart from inf, which json writes as Infinity)."""
+        return dataclasses.asdict(self)
+
+    @classmethod
+    def from_dict(cls, data: dict) -> "ModelConfig":
+        """Build and validate from nested plain data; unknown keys raise ConfigError."""
+        if not isinstance(data, dict):
+            raise ConfigError(f"configuration must be a table of sections, got {type(data).__name__}")
+        sections = {}
+        for name, value in data.items():
+            if name not in _SECTIONS:
+                raise ConfigError(_unknown(name, list(_SECTIONS), "section"))
+            if not isinstance(value, dict):
+                raise ConfigError(f"[{name}] must be a table of keys, got {value!r}")
+            sections[name] = _build_section(name, _SECTIONS[name], value)
+        return cls(**sections)
+
+    def replace(self, **changes: dict[str, Any]) -> "ModelConfig":
+        """A copy with some keys changed, e.g. ``replace(numerics={"truncation": 85})``."""
+        merged = self.to_dict()
+        for section, keys in changes.items():
+            merged.setdefault(section, {}).update(keys)
+        return ModelConfig.from_dict(merged)
+
+
+def _build_section(name: str, cls, values: dict):
+    known = [f.name for f in dataclasses.fields(cls)]
+    for key in values:
+        if key not in known:
+            raise ConfigError(_unknown(f"{name}.{key}", [f"{name}.{k}" for k in known], "key"))
+    return cls(**values)
+
+
+def _unknown(given: str, known: list[str], what: str) -> str:
+    close = difflib.get_close_matches(given, known, n=1, cutoff=0.5)
+    hint = f" (did you mean {close[0]!r}?)" if close else f" (known: {', '.join(known)})"
+    return f"unknown {what} {given!r}{hint}"

@@ -1,0 +1,102 @@
+"""Run files: one netCDF4 file per run, CF-1.10 metadata from :mod:`torrid.io.variables`.
+
+Files are written atomically: to a temporary name in the destination folder, then renamed, so a
+reader never sees a half-written file under the final name. Nothing is replaced unless asked.
+"""
+
+from __future__ import annotations
+
+import os
+import tempfile
+from pathlib import Path
+
+import numpy as np
+import xarray as xr
+
+from torrid.io.variables import COORDINATES, VARIABLES
+
+
+class OutputExistsError(FileExistsError):
+    """The output file exists and overwriting was not asked for."""
+
+
+def check_writable(path: str | os.PathLike, overwrite: bool) -> Path:
+    """Refuse an existing ``path`` unless ``overwrite``; make its folder. Returns the Path."""
+    path = Path(path)
+    if path.exists() and not overwrite:
+        raise OutputExistsError(f"{path} exists: choose another name or pass --overwrite")
+    path.parent.mkdir(parents=True, exist_ok=True)
+    return path
+
+
+def build_dataset(times_days, latitude_deg, longitude_deg, series: dict[str, list],
+                  static: dict[str, np.ndarray], attrs: dict) -> xr.Dataset:
+    """Assemble a run dataset; every variable gets its attributes from the table.
+
+    Parameters
+    ----------
+    times_days : sequence of float
+        Output times (days since start).
+    latitude_deg, longitude_deg : ndarray
+        Ascending latitudes (degrees_north) and longitudes in [-180, 180) (degrees_east).
+    series : dict
+        Variable name -> list over time of arrays (maps (lat, lon) or scalars).
+    static : dict
+        Variable name -> time-independent array (lat, lon).
+    attrs : dict
+        Global attributes.
+    """
+    coords = {"time": np.asarray(times_days, float), "lat": latitude_deg, "lon": longitude_deg}
+    data = {}
+    for name, values in {**{k: np.stack(v) for k, v in series.items()}, **static}.items():
+        var = VARIABLES[name]
+        data[name] = xr.Variable(var.dims, np.asarray(values, dtype=np.float64), var.attrs())
+    ds = xr.Dataset(data, coords=coords, attrs={"Conventions": "CF-1.10", **attrs})
+    for name, var in COORDINATES.items():
+        ds[name].attrs.update(var.attrs())
+    ds["time"].attrs["axis"] = "T"
+    return ds
+
+
+def write_atomic(ds: xr.Dataset, path: str | os.PathLike, overwrite: bool = False) -> Path:
+    """Write ``ds`` to netCDF4 at ``path`` via a temporary file in the same folder."""
+    path = check_writable(path, overwrite)
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    os.close(fd)
+    umask = os.umask(0)
+    os.umask(umask)
+    os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes it private; a run file is an ordinary file
+    try:
+        encoding = {name: {"zlib": True, "complevel": 1} for name in ds.data_vars}
+        ds.to_netcdf(tmp, engine="netcdf4", format="NETCDF4", encoding=encoding)
+        os.replace(tmp, path)
+    except BaseException:
+        Path(tmp).unlink(missing_ok=True)
+        raise
+    return path
+
+
+class RunFileError(ValueError):
+    """A file given as a run file is missing, unreadable or not a torrid run file."""
+
+
+def read_run(path: str | os.PathLike) -> xr.Dataset:
+    """Open a run file fully into memory (the file is closed afterwards).
+
+    Raises
+    ------
+    RunFileError
+        One line naming the file if it is missing, unreadable or lacks the run variables.
+    """
+    path = Path(path)
+    if not path.is_file():
+        raise RunFileError(f"{path}: no such run file")
+    try:
+        with xr.open_dataset(path, engine="netcdf4") as ds:
+            ds = ds.load()
+    except Exception as err:  # noqa: BLE001 - any reader failure means the same to the user
+        raise RunFileError(f"{path}: not a readable netCDF run file ({type(err).__name__})") from None
+    missing = [name for name in ("h", "u", "v") if name not in ds]
+    if missing:
+        raise RunFileError(f"{path}: not a torrid run file (missing {', '.join(missing)})")
+    return ds
