@@ -34,7 +34,7 @@ def test_existing_output_is_kept_without_overwrite(tmp_path, capsys):
 
 @pytest.mark.parametrize("argv, fragment", [
     (["run", "--truncation", "0"], "--truncation = 0: must be >= 1"),
-    (["run", "--case", "williamson5", "--alpha", "0.1"], "--alpha = 0.1: only williamson2"),
+    (["run", "--case", "williamson5", "--alpha", "0.1"], "--alpha = 0.1: only --case williamson2"),
     (["run", "--days", "-1"], "--days = -1.0: must be > 0"),
     (["plot", "nowhere.nc"], "nowhere.nc: no such run file"),
 ])

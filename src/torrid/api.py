@@ -11,7 +11,7 @@ import os
 
 import xarray as xr
 
-from torrid.io.config import CaseConfig, ModelConfig, NumericsConfig, RunConfig
+from torrid.io.config import CaseConfig, ModelConfig, NumericsConfig, PlanetConfig, RunConfig
 from torrid.io.runfile import check_writable, write_atomic
 from torrid.physics.cases import CASES
 from torrid.workflow.driver import run_config
@@ -50,6 +50,7 @@ def build_case_config(case: str = "williamson6", *, truncation: int = 42,
     spec = CASES[case]
     return ModelConfig(
         case=CaseConfig(name=case, alpha_rad=alpha_rad),
+        planet=PlanetConfig(),  # the Earth of Williamson et al. (1992)
         numerics=NumericsConfig(truncation=truncation, hyperdiffusion_days=hyperdiffusion_days,
                                 hyperdiffusion_order=hyperdiffusion_order,
                                 time_step_s=time_step_s, courant_number=courant_number,
@@ -57,7 +58,8 @@ def build_case_config(case: str = "williamson6", *, truncation: int = 42,
         run=RunConfig(days=spec.default_days if days is None else days,
                       output_interval_days=(spec.default_output_interval_days
                                             if output_interval_days is None
-                                            else output_interval_days)),
+                                            else output_interval_days),
+                      stop_at_steady_state=False),
     )
 
 
@@ -70,7 +72,7 @@ def run(config: ModelConfig, output: str | os.PathLike | None = None, *,
     if output is not None:
         check_writable(output, overwrite)
     ds, summary = run_config(config, progress=progress)
-    ds.attrs["summary"] = summary.line(config.case.name)
+    ds.attrs["summary"] = summary.line(config.case.name if config.case else "planet")
     if output is not None:
         write_atomic(ds, output, overwrite=overwrite)
     return ds

@@ -133,21 +133,40 @@ class RunConfig:
     Parameters
     ----------
     days : float
-        Simulated days to run.
+        Simulated days to run (the upper bound when stopping at steady state).
     output_interval_days : float
         Interval between written snapshots (days); the initial state is written at 0.
+    stop_at_steady_state : bool
+        Planet runs: stop once the run has equilibrated (criterion in
+        :mod:`torrid.workflow.steady`). Ignored by the standard cases.
+    steady_tolerance : float
+        Relative change of the global diagnostics allowed over the trailing window.
+    steady_window_days : float or None
+        Trailing window (days); ``None``: the longer of 3 rotation periods and 5 tau_rad.
     """
 
-    days: float = 5.0
+    days: float = 200.0
     output_interval_days: float = 1.0
+    stop_at_steady_state: bool = True
+    steady_tolerance: float = 1e-2
+    steady_window_days: float | None = None
 
     def __post_init__(self):
-        s = "run"
-        object.__setattr__(self, "days", _number(s, "days", self.days, minimum=0,
-                                                 strict_min=True, maximum=1e6))
-        object.__setattr__(self, "output_interval_days",
-                           _number(s, "output_interval_days", self.output_interval_days,
-                                   minimum=0, strict_min=True))
+        s, set_ = "run", object.__setattr__
+        set_(self, "days", _number(s, "days", self.days, minimum=0, strict_min=True,
+                                   maximum=1e6))
+        set_(self, "output_interval_days", _number(s, "output_interval_days",
+                                                   self.output_interval_days, minimum=0,
+                                                   strict_min=True))
+        if not isinstance(self.stop_at_steady_state, bool):
+            raise ConfigError(f"run.stop_at_steady_state = {self.stop_at_steady_state!r}: "
+                              "must be true or false")
+        set_(self, "steady_tolerance", _number(s, "steady_tolerance", self.steady_tolerance,
+                                               minimum=0, strict_min=True, maximum=0.5))
+        if self.steady_window_days is not None:
+            set_(self, "steady_window_days", _number(s, "steady_window_days",
+                                                     self.steady_window_days, minimum=0,
+                                                     strict_min=True))
 
 
 @dataclass(frozen=True)
@@ -176,31 +195,145 @@ class CaseConfig:
         object.__setattr__(self, "alpha_rad", a)
 
 
-_SECTIONS = {"planet": PlanetConfig, "numerics": NumericsConfig, "run": RunConfig,
-             "case": CaseConfig}
+@dataclass(frozen=True)
+class AtmosphereConfig:
+    """The forced layer of a hot-planet run (Showman & Polvani 2011 form).
+
+    Parameters
+    ----------
+    mean_geopotential_m2_s2 : float
+        g H, the nightside equilibrium geopotential; sqrt(g H) is the gravity-wave speed.
+    forcing_contrast : float
+        dH / H: the substellar equilibrium thickness is H (1 + dH/H).
+    radiative_timescale_days : float
+        tau_rad (days); ``inf``: no forcing.
+    drag_timescale_days : float
+        tau_drag (days); ``inf``: no drag.
+    """
+
+    mean_geopotential_m2_s2: float = 4.0e6
+    forcing_contrast: float = 1.0
+    radiative_timescale_days: float = 1.0
+    drag_timescale_days: float = math.inf
+
+    def __post_init__(self):
+        s, set_ = "atmosphere", object.__setattr__
+        set_(self, "mean_geopotential_m2_s2", _number(s, "mean_geopotential_m2_s2",
+                                                      self.mean_geopotential_m2_s2, minimum=0,
+                                                      strict_min=True))
+        set_(self, "forcing_contrast", _number(s, "forcing_contrast", self.forcing_contrast,
+                                               minimum=0, maximum=10))
+        for key in ("radiative_timescale_days", "drag_timescale_days"):
+            set_(self, key, _number(s, key, getattr(self, key), minimum=0, strict_min=True,
+                                    allow_inf=True))
+
+
+ROTATION_CHOICES = ("synchronous", "pseudo-synchronous", "given")
+
+
+@dataclass(frozen=True)
+class OrbitConfig:
+    """The orbit and how the planet spins on it.
+
+    Parameters
+    ----------
+    eccentricity : float
+        0 <= e < 1.
+    rotation : str
+        ``synchronous`` (spin period = orbital period, sign from planet.rotation_period_days),
+        ``pseudo-synchronous`` (Hut 1981 rate for the eccentricity) or ``given``
+        (planet.rotation_period_days as is; needs orbital_period_days).
+    orbital_period_days : float or None
+        Orbital period (days); ``None``: |planet.rotation_period_days|.
+    distance_exponent : float
+        k in forcing contrast x (a / r)^k on an eccentric orbit.
+    initial_mean_anomaly_deg : float
+        Mean anomaly at the start (degrees; 0 = periastron).
+    """
+
+    eccentricity: float = 0.0
+    rotation: str = "synchronous"
+    orbital_period_days: float | None = None
+    distance_exponent: float = 2.0
+    initial_mean_anomaly_deg: float = 0.0
+
+    def __post_init__(self):
+        s, set_ = "orbit", object.__setattr__
+        e = _number(s, "eccentricity", self.eccentricity, minimum=0)
+        if e >= 1:
+            raise ConfigError(f"orbit.eccentricity = {e!r}: must be in [0, 1) (a bound orbit)")
+        set_(self, "eccentricity", e)
+        if self.rotation not in ROTATION_CHOICES:
+            raise ConfigError(f"orbit.rotation = {self.rotation!r}: must be one of "
+                              f"{', '.join(ROTATION_CHOICES)}")
+        if self.orbital_period_days is not None:
+            set_(self, "orbital_period_days", _number(s, "orbital_period_days",
+                                                      self.orbital_period_days, minimum=0,
+                                                      strict_min=True))
+        set_(self, "distance_exponent", _number(s, "distance_exponent", self.distance_exponent,
+                                                minimum=0, maximum=10))
+        set_(self, "initial_mean_anomaly_deg", _number(s, "initial_mean_anomaly_deg",
+                                                       self.initial_mean_anomaly_deg,
+                                                       minimum=-360, maximum=360))
+
+
+#: The built-in default planet: an invented hot gas giant with typical hot-Jupiter values
+#: (gravity-wave speed sqrt(gH) = 2 km/s, rotation period 3 days, radius 1.2 Jupiter radii).
+DEFAULT_PLANET = dict(radius_m=1.2 * 7.1492e7, rotation_period_days=3.0, gravity_m_s2=10.0)
+
+_SECTIONS = {"planet": PlanetConfig, "atmosphere": AtmosphereConfig, "orbit": OrbitConfig,
+             "numerics": NumericsConfig, "run": RunConfig, "case": CaseConfig}
 
 
 @dataclass(frozen=True)
 class ModelConfig:
-    """A complete, validated run configuration (see the section classes for the keys)."""
+    """A complete, validated run configuration (see the section classes for the keys).
 
-    case: CaseConfig = field(default_factory=CaseConfig)
-    planet: PlanetConfig = field(default_factory=PlanetConfig)
+    Without a ``case`` it is a hot-planet run (forced from rest by ``atmosphere`` on ``orbit``);
+    the defaults are the built-in default planet. With a ``case`` it is a standard test case of
+    the shallow-water core, and ``atmosphere`` and ``orbit`` are unused.
+    """
+
+    planet: PlanetConfig = field(default_factory=lambda: PlanetConfig(**DEFAULT_PLANET))
+    atmosphere: AtmosphereConfig = field(default_factory=AtmosphereConfig)
+    orbit: OrbitConfig = field(default_factory=OrbitConfig)
     numerics: NumericsConfig = field(default_factory=NumericsConfig)
     run: RunConfig = field(default_factory=RunConfig)
+    case: CaseConfig | None = None
 
     def __post_init__(self):
         for name, cls in _SECTIONS.items():
-            if not isinstance(getattr(self, name), cls):
+            value = getattr(self, name)
+            if not isinstance(value, cls) and not (name == "case" and value is None):
                 raise ConfigError(f"{name}: must be a {cls.__name__}")
+        o = self.orbit
+        if self.case is None and o.rotation == "given" and o.orbital_period_days is None:
+            raise ConfigError("orbit.rotation = 'given' needs orbit.orbital_period_days")
+        if self.case is None and math.isinf(self.planet.rotation_period_days) \
+                and o.orbital_period_days is None:
+            raise ConfigError("planet.rotation_period_days = inf needs orbit.orbital_period_days")
         n = self.numerics
         if n.time_step_s is not None and n.time_step_s > self.run.output_interval_days * SECONDS_PER_DAY:
             raise ConfigError(f"numerics.time_step_s = {n.time_step_s!r}: must not exceed "
                               f"run.output_interval_days ({self.run.output_interval_days} days)")
 
+    @property
+    def is_planet(self) -> bool:
+        """True for a forced hot-planet run, False for a standard test case."""
+        return self.case is None
+
     def to_dict(self) -> dict[str, dict[str, Any]]:
-        """Plain nested dict (JSON-safe apart from inf, which json writes as Infinity)."""
-        return dataclasses.asdict(self)
+        """Plain nested dict (JSON-safe apart from inf, which json writes as Infinity).
+
+        Keys left at ``None`` are dropped, so the dict also reads back as a TOML file.
+        """
+        out = {}
+        for name in _SECTIONS:
+            section = getattr(self, name)
+            if section is not None:
+                out[name] = {k: v for k, v in dataclasses.asdict(section).items()
+                             if v is not None}
+        return out
 
     @classmethod
     def from_dict(cls, data: dict) -> "ModelConfig":
@@ -222,6 +355,27 @@ class ModelConfig:
         for section, keys in changes.items():
             merged.setdefault(section, {}).update(keys)
         return ModelConfig.from_dict(merged)
+
+    def with_override(self, assignment: str) -> "ModelConfig":
+        """A copy with one ``section.key=value`` override (value in TOML syntax, or a bare
+        word taken as a string), e.g. ``"atmosphere.drag_timescale_days=inf"``."""
+        key, sep, text = assignment.partition("=")
+        section, dot, name = key.strip().partition(".")
+        if not sep or not dot or not name:
+            raise ConfigError(f"--set {assignment!r}: must look like section.key=value")
+        if section not in _SECTIONS:
+            raise ConfigError(_unknown(section, list(_SECTIONS), "section"))
+        return self.replace(**{section: {name.strip(): parse_value(text.strip())}})
+
+
+def parse_value(text: str):
+    """A value in TOML syntax (numbers, inf, true/false, quoted strings); bare words are strings."""
+    from torrid.io import tomlfile
+
+    try:
+        return tomlfile.loads(f"v = {text}")["v"]
+    except tomlfile.TOMLDecodeError:
+        return text
 
 
 def _build_section(name: str, cls, values: dict):

@@ -8,6 +8,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
+from torrid.physics.diagnostics import DIAGNOSTIC_VARIABLES
+
 
 @dataclass(frozen=True)
 class Variable:
@@ -45,7 +47,13 @@ VARIABLES: dict[str, Variable] = {
     "total_energy": Variable(("time",), "m3 s-2",
                              "global mean of kinetic plus potential energy per unit density"),
     "potential_enstrophy": Variable(("time",), "m-1 s-2", "global mean potential enstrophy"),
+    "substellar_longitude": Variable(("time",), "degrees_east", "longitude of the substellar point"),
+    "star_distance_ratio": Variable(("time",), "1", "star-planet distance over the semi-major axis"),
 }
+#: Hot-planet runs add the diagnostics of torrid.physics.diagnostics as time series.
+VARIABLES.update({name: Variable(("time",), units, long_name)
+                  for name, (units, long_name) in DIAGNOSTIC_VARIABLES.items()
+                  if name not in VARIABLES})
 
 
 def markdown_table() -> str:

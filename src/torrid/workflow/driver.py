@@ -15,7 +15,9 @@ from torrid.io.provenance import provenance_attrs
 from torrid.io.runfile import build_dataset
 from torrid.physics import invariants
 from torrid.physics.fields import grid_state
+from torrid.physics.diagnostics import DIAGNOSTIC_VARIABLES, planet_diagnostics
 from torrid.workflow.setup import Model, build_model
+from torrid.workflow.steady import SteadyCriterion, is_steady
 
 
 @dataclass(frozen=True)
@@ -54,7 +56,21 @@ def output_coordinates(model: Model) -> tuple[np.ndarray, np.ndarray]:
     return lat, lon
 
 
-def snapshot(model: Model, state: np.ndarray) -> dict[str, np.ndarray | float]:
+def planet_snapshot(model: Model, state: np.ndarray, time_s: float) -> dict[str, float]:
+    """Hot-planet diagnostics of one state at ``time_s`` (s)."""
+    forcing = model.forcing
+    lon_sub, _ = forcing.state_at(time_s)
+    h_eq = forcing.equilibrium(time_s) / model.gravity_m_s2
+    out = planet_diagnostics(model.transforms, state, mean_geopotential=model.mean_geopotential,
+                             gravity_m_s2=model.gravity_m_s2,
+                             rotation_rate_s=model.rotation_rate_s,
+                             substellar_longitude_rad=lon_sub, equilibrium_thickness_m=h_eq)
+    out["substellar_longitude"] = float(np.degrees(lon_sub))
+    out["star_distance_ratio"] = float(model.orbit.distance_ratio(time_s))
+    return out
+
+
+def snapshot(model: Model, state: np.ndarray, time_s: float = 0.0) -> dict[str, np.ndarray | float]:
     """Output fields and global invariants of one state (output-grid orientation)."""
     fields = grid_state(model.transforms, state)
     g = model.gravity_m_s2
@@ -66,6 +82,8 @@ def snapshot(model: Model, state: np.ndarray) -> dict[str, np.ndarray | float]:
         "vorticity": fields["vorticity"], "divergence": fields["divergence"],
     }
     out = {k: _to_output_grid(v) for k, v in out.items()}
+    if model.forcing is not None:
+        out.update(planet_snapshot(model, state, time_s))
     out["mean_thickness"] = invariants.mean_thickness(grid, thickness)
     out["total_energy"] = invariants.total_energy(grid, thickness, fields["u"], fields["v"],
                                                   model.surface_height_m, g)
@@ -81,9 +99,11 @@ def integrate(model: Model, progress: bool = True, label: str = "") -> tuple[xr.
     nsteps = max(1, round(config.run.days * SECONDS_PER_DAY / dt))
     state = model.initial_state
     times, series = [0.0], {}
-    _append(series, snapshot(model, state))
+    _append(series, snapshot(model, state, 0.0))
+    criterion = steady_criterion(model)
+    steady_day = None
     bar = tqdm(total=round(nsteps * dt / SECONDS_PER_DAY, 6), unit="day", disable=not progress,
-               desc=label or config.case.name, leave=False, dynamic_ncols=True,
+               desc=label or model.label, leave=False, dynamic_ncols=True,
                bar_format="{desc}: {percentage:3.0f}%|{bar}| {n:.2f}/{total:g} days "
                           "[{elapsed}<{remaining}, {rate_fmt}]")
     start = time.perf_counter()
@@ -91,21 +111,59 @@ def integrate(model: Model, progress: bool = True, label: str = "") -> tuple[xr.
     for step in range(1, nsteps + 1):
         state = model.stepper.step(state, time_s)
         time_s = step * dt
+        bar.update(dt / SECONDS_PER_DAY)
         if step % model.steps_per_output == 0 or step == nsteps:
             times.append(time_s / SECONDS_PER_DAY)
-            _append(series, snapshot(model, state))
-        bar.update(dt / SECONDS_PER_DAY)
+            _append(series, snapshot(model, state, time_s))
+            if criterion is not None and is_steady(times, series, criterion):
+                steady_day = times[-1]
+                break
     wall = time.perf_counter() - start
     bar.close()
     summary = RunSummary(
-        simulated_days=nsteps * dt / SECONDS_PER_DAY, wall_seconds=wall, steps=nsteps,
+        simulated_days=time_s / SECONDS_PER_DAY, wall_seconds=wall, steps=step,
         mass_change_relative=_relative_change(series["mean_thickness"]),
         energy_change_relative=_relative_change(series["total_energy"]),
     )
     lat, lon = output_coordinates(model)
     static = {"surface_height": _to_output_grid(model.surface_height_m)}
-    ds = build_dataset(times, lat, lon, series, static, _run_attrs(model, summary))
+    attrs = _run_attrs(model, summary)
+    if model.forcing is not None:
+        attrs.update(_planet_attrs(model, series, criterion, steady_day))
+    ds = build_dataset(times, lat, lon, series, static, attrs)
     return ds, summary
+
+
+def steady_criterion(model: Model) -> SteadyCriterion | None:
+    """The steady-state test of a planet run, or None if the run should not stop early."""
+    run = model.config.run
+    if model.forcing is None or not run.stop_at_steady_state:
+        return None
+    rotation_days = (2 * math.pi / abs(model.rotation_rate_s) / SECONDS_PER_DAY
+                     if model.rotation_rate_s else math.inf)
+    cycle = None if model.orbit.is_steady else model.orbit.orbital_period_s / SECONDS_PER_DAY
+    return SteadyCriterion.for_run(rotation_days,
+                                   model.config.atmosphere.radiative_timescale_days,
+                                   run.steady_tolerance, run.steady_window_days, cycle)
+
+
+def _planet_attrs(model: Model, series: dict, criterion: SteadyCriterion | None,
+                  steady_day: float | None) -> dict:
+    atm = model.config.atmosphere
+    out = {
+        "steady_state_reached": int(steady_day is not None),
+        "steady_state_time_days": steady_day if steady_day is not None else float("nan"),
+        "steady_state_criterion": ("none (run.stop_at_steady_state = false)" if criterion is None
+                                   else f"window {criterion.window_days:g} days, tolerance "
+                                        f"{criterion.tolerance:g}"
+                                        + ("" if model.orbit.is_steady
+                                           else ", whole orbits (orbit-to-orbit repeat)")),
+        "nightside_thickness_m": atm.mean_geopotential_m2_s2 / model.gravity_m_s2,
+        "forcing_contrast": atm.forcing_contrast,
+    }
+    for name in DIAGNOSTIC_VARIABLES:
+        out[f"final_{name}"] = float(series[name][-1])
+    return out
 
 
 def run_config(config: ModelConfig, progress: bool = True) -> tuple[xr.Dataset, RunSummary]:
@@ -124,10 +182,15 @@ def _relative_change(values: list[float]) -> float:
 
 def _run_attrs(model: Model, summary: RunSummary) -> dict:
     grid, case = model.grid, model.case
+    if case is None:
+        described = {"title": "torrid run: forced hot gas giant", "case": "planet",
+                     "references": "forcing: Showman & Polvani (2011); "
+                                   "Perez-Becker & Showman (2013)"}
+    else:
+        described = {"title": f"torrid run: {case.title}", "case": case.name,
+                     "references": case.reference}
     return {
-        "title": f"torrid run: {case.title}",
-        "case": case.name,
-        "references": case.reference,
+        **described,
         **provenance_attrs(model.config.to_dict()),
         "truncation": f"T{grid.truncation}",
         "grid": f"Gauss-Legendre, {grid.nlat} latitudes x {grid.nlon} longitudes",
@@ -138,7 +201,7 @@ def _run_attrs(model: Model, summary: RunSummary) -> dict:
         "mean_geopotential_m2_s2": model.mean_geopotential,
         "gravity_m_s2": model.gravity_m_s2,
         "radius_m": model.config.planet.radius_m,
-        "rotation_rate_s": model.config.planet.rotation_rate_s,
+        "rotation_rate_s": model.rotation_rate_s,
         "steps": summary.steps,
         "wall_time_s": round(summary.wall_seconds, 3),
     }

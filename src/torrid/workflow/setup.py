@@ -12,8 +12,10 @@ from torrid.io.config import SECONDS_PER_DAY, ModelConfig
 from torrid.physics.cases import CASES, CaseSpec
 from torrid.physics.coriolis import coriolis_parameter
 from torrid.physics.fields import spectral_state
+from torrid.physics.forcing import DayNightForcing
 from torrid.physics.grid import SpectralGrid
 from torrid.physics.linear import LinearTerms, hyperdiffusion_rates
+from torrid.physics.orbit import Orbit, pseudo_synchronous_ratio
 from torrid.physics.tendencies import Dynamics
 from torrid.physics.timestepping import IMEXStepper, automatic_time_step
 from torrid.physics.transforms import Transforms
@@ -24,7 +26,7 @@ class Model:
     """Everything a run needs, built once from a configuration."""
 
     config: ModelConfig
-    case: CaseSpec
+    case: CaseSpec | None  # None for a hot-planet run
     grid: SpectralGrid
     transforms: Transforms
     dynamics: Dynamics
@@ -34,25 +36,64 @@ class Model:
     surface_height_m: np.ndarray  # grid (nlat, nlon)
     gravity_m_s2: float
     mean_geopotential: float  # m^2 s^-2
+    rotation_rate_s: float
     hyperdiffusion_days: float
     hyperdiffusion_order: int
     steps_per_output: int
+    forcing: DayNightForcing | None = None
+    orbit: Orbit | None = None
 
     @property
     def dt(self) -> float:
         """Time step (s)."""
         return self.stepper.dt
 
+    @property
+    def label(self) -> str:
+        """Short name of what is run."""
+        return self.case.name if self.case else "planet"
 
-def resolved_hyperdiffusion(config: ModelConfig, case: CaseSpec) -> tuple[float, int]:
-    """The hyperdiffusion e-folding time (days) and order p: the configuration's or the case's."""
+
+@dataclass(frozen=True)
+class _Start:
+    """Initial fields and physical set-up of a run, before the numerics are attached."""
+
+    u: np.ndarray
+    v: np.ndarray
+    thickness_m: np.ndarray
+    surface_height_m: np.ndarray
+    coriolis: np.ndarray
+    mean_geopotential: float
+    reference_speed_m_s: float
+    rotation_rate_s: float
+    drag_rate: float = 0.0
+    relaxation_rate: float = 0.0
+    forcing: DayNightForcing | None = None
+    orbit: Orbit | None = None
+
+
+#: Hot-planet runs: del^8 hyperdiffusion with this e-folding time at the truncation scale (days),
+#: chosen (common practice) to damp grid-scale noise near the day-night front in a few steps.
+PLANET_HYPERDIFFUSION_DAYS = 0.1
+PLANET_HYPERDIFFUSION_ORDER = 4
+#: Hot-planet runs start from rest; the automatic step assumes winds up to this multiple of
+#: the gravity-wave speed sqrt(g H) (the equatorial jets of such runs reach about 1-2 c).
+PLANET_SPEED_OVER_WAVE_SPEED = 2.0
+
+
+def resolved_hyperdiffusion(config: ModelConfig, case: CaseSpec | None) -> tuple[float, int]:
+    """The hyperdiffusion e-folding time (days) and order p: the configuration's or the
+    default of the case (or of planet runs)."""
     n = config.numerics
     days = n.hyperdiffusion_days
     if days is None:
-        d = case.default_hyperdiffusion_days
-        days = d(n.truncation) if callable(d) else d
-    order = n.hyperdiffusion_order or case.default_hyperdiffusion_order
-    return float(days), int(order)
+        if case is None:
+            days = PLANET_HYPERDIFFUSION_DAYS
+        else:
+            d = case.default_hyperdiffusion_days
+            days = d(n.truncation) if callable(d) else d
+    default_order = PLANET_HYPERDIFFUSION_ORDER if case is None else case.default_hyperdiffusion_order
+    return float(days), int(n.hyperdiffusion_order or default_order)
 
 
 def choose_time_step(config: ModelConfig, max_speed_m_s: float) -> tuple[float, int]:
@@ -71,37 +112,90 @@ def choose_time_step(config: ModelConfig, max_speed_m_s: float) -> tuple[float, 
     return interval_s / steps, steps
 
 
-def build_model(config: ModelConfig) -> Model:
-    """Build the model of ``config`` with its initial state."""
+def rotation_rate(config: ModelConfig) -> tuple[float, float]:
+    """Signed spin rate Omega (rad s^-1) and orbital period (s) of a planet run."""
+    planet, orbit = config.planet, config.orbit
+    period_days = orbit.orbital_period_days or abs(planet.rotation_period_days)
+    sign = -1.0 if planet.rotation_period_days < 0 else 1.0
+    mean_motion = 2 * math.pi / (period_days * SECONDS_PER_DAY)
+    if orbit.rotation == "synchronous":
+        omega = sign * mean_motion
+    elif orbit.rotation == "pseudo-synchronous":
+        omega = sign * mean_motion * pseudo_synchronous_ratio(orbit.eccentricity)
+    else:
+        omega = planet.rotation_rate_s
+    return omega, period_days * SECONDS_PER_DAY
+
+
+def _case_start(config: ModelConfig, grid: SpectralGrid) -> _Start:
     case = CASES[config.case.name]
     planet = config.planet
-    grid = SpectralGrid(config.numerics.truncation)
-    transforms = Transforms(grid, planet.radius_m, config.numerics.threads)
     lat, lon = grid.mesh()
     params = {"alpha_rad": config.case.alpha_rad} if "alpha_rad" in case.parameters else {}
     fields = case.initial_fields(lat, lon, radius_m=planet.radius_m,
                                  rotation_rate_s=planet.rotation_rate_s,
                                  gravity_m_s2=planet.gravity_m_s2, **params)
-    g = planet.gravity_m_s2
-    thickness_geopotential = g * (fields.h - fields.surface_height)
-    mean_geopotential = grid.global_mean(thickness_geopotential)
-    state = spectral_state(transforms, fields.u, fields.v,
-                           thickness_geopotential - mean_geopotential)
-    coriolis = coriolis_parameter(lat, lon, planet.rotation_rate_s, fields.coriolis_tilt_rad)
-    dynamics = Dynamics(transforms, coriolis, mean_geopotential,
-                        surface_geopotential=g * fields.surface_height)
+    thickness = fields.h - fields.surface_height
+    return _Start(
+        u=fields.u, v=fields.v, thickness_m=thickness,
+        surface_height_m=np.asarray(fields.surface_height, float) * np.ones(grid.shape),
+        coriolis=coriolis_parameter(lat, lon, planet.rotation_rate_s, fields.coriolis_tilt_rad),
+        mean_geopotential=grid.global_mean(planet.gravity_m_s2 * thickness),
+        reference_speed_m_s=float(np.sqrt(fields.u**2 + fields.v**2).max()),
+        rotation_rate_s=planet.rotation_rate_s,
+    )
+
+
+def _planet_start(config: ModelConfig, grid: SpectralGrid, transforms: Transforms) -> _Start:
+    atm, planet = config.atmosphere, config.planet
+    omega, period_s = rotation_rate(config)
+    orbit = Orbit(orbital_period_s=period_s, eccentricity=config.orbit.eccentricity,
+                  rotation_rate_s=omega,
+                  initial_mean_anomaly_rad=math.radians(config.orbit.initial_mean_anomaly_deg))
+    phi = atm.mean_geopotential_m2_s2
+    forcing = DayNightForcing(transforms, orbit, phi, atm.forcing_contrast,
+                              atm.radiative_timescale_days * SECONDS_PER_DAY,
+                              config.orbit.distance_exponent)
+    lat, lon = grid.mesh()
+    zeros = np.zeros(grid.shape)
+    return _Start(
+        u=zeros, v=zeros, thickness_m=np.full(grid.shape, phi / planet.gravity_m_s2),
+        surface_height_m=zeros, coriolis=coriolis_parameter(lat, lon, omega, 0.0),
+        mean_geopotential=phi,
+        reference_speed_m_s=PLANET_SPEED_OVER_WAVE_SPEED * math.sqrt(phi),
+        rotation_rate_s=omega,
+        drag_rate=1.0 / (atm.drag_timescale_days * SECONDS_PER_DAY),
+        relaxation_rate=forcing.rate, forcing=forcing, orbit=orbit,
+    )
+
+
+def build_model(config: ModelConfig) -> Model:
+    """Build the model of ``config`` with its initial state."""
+    grid = SpectralGrid(config.numerics.truncation)
+    transforms = Transforms(grid, config.planet.radius_m, config.numerics.threads)
+    if config.is_planet:
+        start = _planet_start(config, grid, transforms)
+    else:
+        start = _case_start(config, grid)
+    g = config.planet.gravity_m_s2
+    state = spectral_state(transforms, start.u, start.v,
+                           g * start.thickness_m - start.mean_geopotential)
+    dynamics = Dynamics(transforms, start.coriolis, start.mean_geopotential,
+                        surface_geopotential=g * start.surface_height_m, forcing=start.forcing)
+    case = None if config.is_planet else CASES[config.case.name]
     days, order = resolved_hyperdiffusion(config, case)
     l = grid.degree.astype(float)
     linear = LinearTerms(
-        laplacian_factor=l * (l + 1) / planet.radius_m**2,
-        mean_geopotential=mean_geopotential,
+        laplacian_factor=l * (l + 1) / config.planet.radius_m**2,
+        mean_geopotential=start.mean_geopotential,
         hyperdiffusion=hyperdiffusion_rates(l, grid.truncation, days * SECONDS_PER_DAY, order),
+        drag_rate=start.drag_rate, relaxation_rate=start.relaxation_rate,
     )
-    max_speed = float(np.sqrt(fields.u**2 + fields.v**2).max())
-    dt, steps_per_output = choose_time_step(config, max_speed)
+    dt, steps_per_output = choose_time_step(config, start.reference_speed_m_s)
     stepper = IMEXStepper(dynamics, linear, dt, state.shape)
     return Model(config=config, case=case, grid=grid, transforms=transforms, dynamics=dynamics,
                  linear=linear, stepper=stepper, initial_state=state,
-                 surface_height_m=np.asarray(fields.surface_height, float) * np.ones(grid.shape),
-                 gravity_m_s2=g, mean_geopotential=mean_geopotential, hyperdiffusion_days=days,
-                 hyperdiffusion_order=order, steps_per_output=steps_per_output)
+                 surface_height_m=start.surface_height_m, gravity_m_s2=g,
+                 mean_geopotential=start.mean_geopotential, rotation_rate_s=start.rotation_rate_s,
+                 hyperdiffusion_days=days, hyperdiffusion_order=order,
+                 steps_per_output=steps_per_output, forcing=start.forcing, orbit=start.orbit)
