@@ -65,3 +65,50 @@ def test_console_script_help_reads_well():
                          text=True, check=True)
     for case in ("williamson2", "williamson5", "williamson6", "galewsky", "galewsky-unperturbed"):
         assert case in res.stdout
+
+
+def test_planet_run_from_toml_with_overrides_and_plots(tmp_path, capsys):
+    toml = tmp_path / "hot.toml"
+    toml.write_text("[atmosphere]\nradiative_timescale_days = 0.5\n[numerics]\ntruncation = 21\n"
+                    "[run]\ndays = 1.0\noutput_interval_days = 0.25\n")
+    out = tmp_path / "hot.nc"
+    assert main(["run", str(toml), "--set", "atmosphere.drag_timescale_days=5", "-o", str(out),
+                 "-q"]) == 0
+    lines = capsys.readouterr().out.splitlines()
+    assert lines[0].startswith("planet:") and "hotspot" in lines[1] and "map:" in lines[2]
+    ds = xr.open_dataset(out)
+    import json
+
+    config = json.loads(ds.attrs["configuration_json"])
+    assert config["atmosphere"]["drag_timescale_days"] == 5.0
+    assert config["atmosphere"]["radiative_timescale_days"] == 0.5
+    for name in ("hotspot_offset", "day_night_contrast", "limb_wind_east", "kinetic_energy"):
+        assert ds[name].dims == ("time",) and f"final_{name}" in ds.attrs
+    ds.close()
+    assert main(["plot", str(out), "--overwrite"]) == 0
+    assert (tmp_path / "hot-spinup.png").read_bytes()[:4] == b"\x89PNG"
+    assert main(["plot", str(out)]) == 2  # images exist now: refused without --overwrite
+    assert "--overwrite" in capsys.readouterr().err
+
+
+@pytest.mark.parametrize("toml, fragment", [
+    ("[numerics]\ntruncaton = 21\n", "unknown key 'numerics.truncaton' (did you mean "
+                                     "'numerics.truncation'?)"),
+    ("[orbit]\neccentricity = 1.2\n", "orbit.eccentricity = 1.2: must be in [0, 1)"),
+    ("[atmosphere]\nforcing_contrast = 'big'\n", "atmosphere.forcing_contrast = 'big': must be a number"),
+    ("[run\n", "invalid TOML"),
+])
+def test_bad_config_files_name_the_file_and_key(toml, fragment, tmp_path, capsys):
+    path = tmp_path / "bad.toml"
+    path.write_text(toml)
+    assert main(["run", str(path), "-q"]) == 2
+    err = capsys.readouterr().err
+    assert "bad.toml" in err and fragment in err and len(err.splitlines()) == 1
+
+
+def test_bad_override_is_one_line(tmp_path, capsys, monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    assert main(["run", "--set", "atmosphere.radiative_timescale_days=-1", "-q"]) == 2
+    assert "atmosphere.radiative_timescale_days = -1: must be > 0" in capsys.readouterr().err
+    assert main(["run", "--set", "nonsense", "-q"]) == 2
+    assert "must look like section.key=value" in capsys.readouterr().err

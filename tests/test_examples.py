@@ -1,16 +1,45 @@
-"""Every example script runs (briefly) and produces what it promises."""
+"""Every example (scripts and configuration files) runs briefly and produces what it promises."""
 
+import math
 import runpy
 import sys
 from pathlib import Path
 
+import numpy as np
 import pytest
 
+import torrid
+from torrid.interface.cli import main
+
 EXAMPLES = Path(__file__).parents[1] / "examples"
+BRIEF = ("numerics.truncation=21", "run.days=2", "run.output_interval_days=0.5")
 
 
 def test_every_example_is_covered():
     assert sorted(p.name for p in EXAMPLES.glob("*.py")) == sorted(BRIEF_ARGS)
+    assert sorted(p.name for p in EXAMPLES.glob("*.toml")) == sorted(TOML_EXAMPLES)
+
+
+TOML_EXAMPLES = ["default_planet.toml", "eccentric.toml", "strong_drag.toml"]
+
+
+def test_default_planet_example_is_the_built_in_default():
+    assert torrid.load_config(EXAMPLES / "default_planet.toml") == torrid.ModelConfig()
+
+
+@pytest.mark.parametrize("name", TOML_EXAMPLES)
+def test_toml_example_runs(name, tmp_path, capsys):
+    out = tmp_path / name.replace(".toml", ".nc")
+    argv = ["run", str(EXAMPLES / name), "-o", str(out), "-q"]
+    for assignment in BRIEF:
+        argv += ["--set", assignment]
+    assert main(argv) == 0
+    text = capsys.readouterr().out
+    assert "hotspot" in text and "day-night contrast" in text
+    ds = torrid.io.runfile.read_run(out)
+    assert np.isfinite(ds.h).all() and ds.attrs["case"] == "planet"
+    assert math.isclose(float(ds.time[-1]), 2.0) or ds.attrs["steady_state_reached"]
+    assert out.with_suffix(".png").read_bytes()[:4] == b"\x89PNG"
 
 
 BRIEF_ARGS = {

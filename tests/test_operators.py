@@ -10,9 +10,10 @@ External references:
   coefficient a_lm = 1/2, Im Y_l^m has a_lm = -i/2, and Y_l^0 has a_l0 = 1.
 * The surface Laplacian of a homogeneous polynomial P of degree n restricted to the sphere of
   radius a: Lap_S P = (Lap_3 P - n (n + 1) P) / a^2 at r = 1 (from Euler's theorem
-  r dP/dr = n P; textbook identity, e.g. Arfken & Weber, "Mathematical Methods for Physicists",
-  chapter on spherical harmonics). The tangential gradient of any extension F is grad F minus its
-  radial part; its east/north components are grad F . e_east / a and grad F . e_north / a.
+  r dP/dr = n P; a standard identity, derived here; the textbook pointer, Arfken & Weber,
+  "Mathematical Methods for Physicists", chapter on spherical harmonics, is from memory).
+  The tangential gradient of any extension F is grad F minus its radial part; its east/north
+  components are grad F . e_east / a and grad F . e_north / a.
 * Solid-body rotation about an axis tilted by alpha: u = U (cos(lat) cos(alpha) + cos(lon)
   sin(lat) sin(alpha)), v = -U sin(lon) sin(alpha) has vorticity
   2 U / a (sin(lat) cos(alpha) - cos(lon) cos(lat) sin(alpha)) and no divergence (Williamson,
@@ -158,7 +159,8 @@ def test_laplacian_of_cubic_polynomial(truncation):
     err = _relmax(got - lap, lap)
     exact_coeffs = np.where(grid.degree <= 3, coeffs, 0)  # drop the round-off above l = 3
     err_exact = _relmax(tr.to_grid(exact_coeffs * tr.laplacian_eigenvalues()) - lap, lap)
-    print(f"\nT{truncation} Laplacian of cubic: max rel err {err:.2e} (band-limited {err_exact:.2e})")
+    print(f"\nT{truncation} Laplacian of cubic: max rel err {err:.2e} "
+          f"(band-limited {err_exact:.2e})")
     assert err < ROUNDOFF_LAPLACIAN
     assert err_exact < ROUNDOFF_EXACT
 
@@ -209,7 +211,8 @@ def test_solid_body_rotation_vorticity_and_divergence(t42, alpha):
     u0 = 40.0
     u = u0 * (np.cos(lat) * np.cos(alpha) + np.cos(lon) * np.sin(lat) * np.sin(alpha))
     v = -u0 * np.sin(lon) * np.sin(alpha)
-    zeta = 2 * u0 / RADIUS_M * (np.sin(lat) * np.cos(alpha) - np.cos(lon) * np.cos(lat) * np.sin(alpha))
+    zeta = 2 * u0 / RADIUS_M * (np.sin(lat) * np.cos(alpha)
+                                - np.cos(lon) * np.cos(lat) * np.sin(alpha))
     div, curl = tr.divergence_curl(u, v)
     scale = 2 * u0 / RADIUS_M
     assert np.max(np.abs(tr.to_grid(curl) - zeta)) / scale < ROUNDOFF

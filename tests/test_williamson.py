@@ -325,7 +325,8 @@ def test_case5_mountain_stable_and_conservative():
     thickness = ds.h.values - ds.surface_height.values[None]
     speed = np.sqrt(ds.u.values**2 + ds.v.values**2).max()
     print(f"\ncase 5 T42 15 days: max |mass change| {np.abs(changes['mean_thickness']).max():.2e}; "
-          f"max |dE/E| {np.abs(changes['total_energy']).max():.2e} (end {changes['total_energy'][-1]:.2e}); "
+          f"max |dE/E| {np.abs(changes['total_energy']).max():.2e} "
+          f"(end {changes['total_energy'][-1]:.2e}); "
           f"dZ/Z {changes['potential_enstrophy'][-1]:.2e}; min thickness {thickness.min():.1f} m; "
           f"h in [{ds.h.values[-1].min():.1f}, {ds.h.values[-1].max():.1f}] m at day 15; "
           f"max wind {speed:.1f} m/s; dt {model.dt:.0f} s")

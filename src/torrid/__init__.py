@@ -17,7 +17,7 @@ class TorridWarning(UserWarning):
     """Warnings issued by torrid itself (turned into errors in the test suite)."""
 
 
-_API = ("build_case_config", "run")
+_API = ("build_case_config", "run", "ModelConfig", "load_config")
 __all__ = ["__version__", "TorridWarning", *_API]
 
 

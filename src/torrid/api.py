@@ -1,6 +1,9 @@
 """The Python API, mirroring the command line.
 
 >>> import torrid
+>>> planet = torrid.ModelConfig()                         # the built-in default planet
+>>> dragged = planet.with_override("atmosphere.drag_timescale_days=1")
+>>> ds = torrid.run(dragged)                              # doctest: +SKIP
 >>> config = torrid.build_case_config("williamson6", truncation=42, days=14)
 >>> ds = torrid.run(config, output="runs/w6.nc")          # doctest: +SKIP
 """
@@ -13,6 +16,7 @@ import xarray as xr
 
 from torrid.io.config import CaseConfig, ModelConfig, NumericsConfig, PlanetConfig, RunConfig
 from torrid.io.runfile import check_writable, write_atomic
+from torrid.io.tomlfile import load_config
 from torrid.physics.cases import CASES
 from torrid.workflow.driver import run_config
 

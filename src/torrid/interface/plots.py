@@ -134,7 +134,7 @@ def plot_spinup(ds: xr.Dataset, path: str | os.PathLike | None = None, overwrite
                              constrained_layout=True)
     for ax, (name, label, factor) in zip(np.atleast_1d(axes), panels):
         ax.plot(ds["time"], ds[name] * factor, color="tab:blue")
-        ax.set_ylabel(label, fontsize=8)
+        ax.set_title(label, fontsize=9, loc="left")
         if ds.attrs.get("steady_state_reached"):
             ax.axvline(ds.attrs["steady_state_time_days"], color="grey", ls="--", lw=0.8)
     np.atleast_1d(axes)[-1].set_xlabel("simulated time (days)")

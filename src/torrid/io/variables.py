@@ -49,6 +49,8 @@ VARIABLES: dict[str, Variable] = {
     "potential_enstrophy": Variable(("time",), "m-1 s-2", "global mean potential enstrophy"),
     "substellar_longitude": Variable(("time",), "degrees_east", "longitude of the substellar point"),
     "star_distance_ratio": Variable(("time",), "1", "star-planet distance over the semi-major axis"),
+    "mean_mass_source": Variable(("time",), "m s-1",
+                                 "global mean of the thickness source Q = (h_eq - h) / tau_rad"),
 }
 #: Hot-planet runs add the diagnostics of torrid.physics.diagnostics as time series.
 VARIABLES.update({name: Variable(("time",), units, long_name)
@@ -63,3 +65,7 @@ def markdown_table() -> str:
         rows.append(f"| `{name}` | {', '.join(var.dims)} | {var.units} | {var.long_name} | "
                     f"{var.standard_name or ''} |")
     return "\n".join(rows)
+
+
+if __name__ == "__main__":  # python -m torrid.io.variables: the README's table
+    print(markdown_table())

@@ -56,7 +56,9 @@ class DayNightForcing:
         self.mean_geopotential, self.contrast = float(mean_geopotential), float(contrast)
         self.rate = 0.0 if math.isinf(radiative_timescale_s) else 1.0 / radiative_timescale_s
         self.distance_exponent = float(distance_exponent)
-        self._lat, self._lon = transforms.grid.mesh()
+        lat, lon = transforms.grid.mesh()
+        self._coslat_coslon = np.cos(lat) * np.cos(lon)  # cos(lat) cos(lon - s) expands
+        self._coslat_sinlon = np.cos(lat) * np.sin(lon)  # into these two for any s
         self._cached_time = None
         self._phi_eq = None
         self._source = None
@@ -75,9 +77,9 @@ class DayNightForcing:
         key = 0.0 if self._steady else time_s
         if self._cached_time != key:
             lon_sub, contrast = self.state_at(time_s)
-            self._phi_eq = equilibrium_geopotential(
-                self._lat, self._lon, mean_geopotential=self.mean_geopotential,
-                contrast=contrast, substellar_longitude_rad=lon_sub)
+            cosine = (self._coslat_coslon * math.cos(lon_sub)
+                      + self._coslat_sinlon * math.sin(lon_sub))
+            self._phi_eq = self.mean_geopotential * (1 + contrast * np.maximum(cosine, 0.0))
             self._source = self.transforms.to_spectral(
                 (self._phi_eq - self.mean_geopotential) * self.rate)
             self._cached_time = key

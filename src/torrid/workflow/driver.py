@@ -65,6 +65,8 @@ def planet_snapshot(model: Model, state: np.ndarray, time_s: float) -> dict[str,
                              gravity_m_s2=model.gravity_m_s2,
                              rotation_rate_s=model.rotation_rate_s,
                              substellar_longitude_rad=lon_sub, equilibrium_thickness_m=h_eq)
+    phi = model.transforms.to_grid(state[2])
+    out["mean_mass_source"] = model.grid.global_mean(forcing.heating(time_s, phi)) / model.gravity_m_s2
     out["substellar_longitude"] = float(np.degrees(lon_sub))
     out["star_distance_ratio"] = float(model.orbit.distance_ratio(time_s))
     return out

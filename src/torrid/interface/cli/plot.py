@@ -1,4 +1,4 @@
-"""``torrid plot``: draw a map of a run file as a PNG."""
+"""``torrid plot``: draw a run file as PNG images."""
 
 from __future__ import annotations
 
@@ -8,24 +8,44 @@ from pathlib import Path
 
 
 def add_parser(sub: argparse._SubParsersAction) -> None:
-    p = sub.add_parser("plot", help="draw a map of a run file (PNG)",
-                       description="Draw a lon-lat map of one variable of a run file.")
+    p = sub.add_parser(
+        "plot", help="draw a run file (PNG maps and spin-up time series)",
+        description="Draw a run file. For a planet run: the thickness map centred on the "
+                    "substellar point with wind arrows, the substellar point and the hotspot "
+                    "marked and the zonal-mean zonal wind beside it (RUN.png), and the spin-up "
+                    "diagnostics against time (RUN-spinup.png). With --variable, or for a "
+                    "standard case: a lon-lat map of one variable (RUN-<variable>.png).")
     p.add_argument("run_file", type=Path, metavar="RUN.nc", help="run file written by torrid run")
-    p.add_argument("--variable", default="h", help="variable to draw: h, u, v, vorticity, divergence (default: h)")
+    p.add_argument("--variable", default=None,
+                   help="draw this variable as a plain map: h, u, v, vorticity, divergence "
+                        "(default for standard cases: h)")
     p.add_argument("--time", type=float, default=None, metavar="DAY",
                    help="simulated day to draw (default: the last output)")
     p.add_argument("-o", "--output", type=Path, default=None, metavar="FILE.png",
-                   help="image to write (default: RUN-<variable>.png beside the run file)")
-    p.add_argument("--overwrite", action="store_true", help="replace an existing image")
+                   help="image to write (default: beside the run file, named as above)")
+    p.add_argument("--overwrite", action="store_true", help="replace existing images")
     p.set_defaults(handler=handle)
 
 
 def handle(args: argparse.Namespace) -> int:
-    from torrid.interface.plots import plot_map
+    from torrid.interface import plots
     from torrid.io.runfile import read_run
 
     ds = read_run(args.run_file)
-    out = args.output or args.run_file.with_name(f"{args.run_file.stem}-{args.variable}.png")
-    plot_map(ds, args.variable, args.time, out, overwrite=args.overwrite)
-    print(f"wrote {out}", file=sys.stdout)
+    stem = args.run_file.with_suffix("")
+    is_planet = "hotspot_offset" in ds
+    if args.variable or not is_planet:
+        variable = args.variable or "h"
+        out = args.output or Path(f"{stem}-{variable}.png")
+        plots.plot_map(ds, variable, args.time, out, overwrite=args.overwrite)
+        print(f"wrote {out}", file=sys.stdout)
+        return 0
+    image = args.output or stem.with_suffix(".png")
+    spinup = image.with_name(f"{image.stem}-spinup.png")
+    for path in (image, spinup):  # refuse before drawing anything
+        if path.exists() and not args.overwrite:
+            raise FileExistsError(f"{path} exists: choose another name or pass --overwrite")
+    plots.plot_planet_map(ds, image, overwrite=args.overwrite, time_days=args.time)
+    plots.plot_spinup(ds, spinup, overwrite=args.overwrite)
+    print(f"wrote {image} and {spinup}", file=sys.stdout)
     return 0
