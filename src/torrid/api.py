@@ -18,7 +18,7 @@ from torrid.io.config import CaseConfig, ModelConfig, NumericsConfig, PlanetConf
 from torrid.io.runfile import check_writable, write_atomic
 from torrid.io.tomlfile import load_config
 from torrid.physics.cases import CASES
-from torrid.workflow.driver import run_config
+from torrid.workflow.driver import RunFailedError, run_config
 
 
 def build_case_config(case: str = "williamson6", *, truncation: int = 42,
@@ -71,11 +71,18 @@ def run(config: ModelConfig, output: str | os.PathLike | None = None, *,
         overwrite: bool = False, progress: bool = False) -> xr.Dataset:
     """Run ``config`` and return its run dataset; also write it to ``output`` if given.
 
-    An existing ``output`` is refused (before any work) unless ``overwrite``.
+    An existing ``output`` is refused (before any work) unless ``overwrite``. A run that
+    fails its health checks raises :class:`torrid.workflow.driver.RunFailedError` after
+    writing ``output`` with ``run_status = "failed"`` and the last good state.
     """
     if output is not None:
         check_writable(output, overwrite)
-    ds, summary = run_config(config, progress=progress)
+    try:
+        ds, summary = run_config(config, progress=progress)
+    except RunFailedError as failure:  # keep what was computed: status "failed" in the file
+        if output is not None:
+            write_atomic(failure.dataset, output, overwrite=overwrite)
+        raise
     ds.attrs["summary"] = summary.line(config.case.name if config.case else "planet")
     if output is not None:
         write_atomic(ds, output, overwrite=overwrite)

@@ -34,8 +34,11 @@ IMPLICIT = np.array([
 ])
 NODES = EXPLICIT.sum(axis=1)  # c_i: 0, 1/2, 2/3, 1/2, 1
 ORDER = 3
-#: Largest advective Courant number (|v|_max dt sqrt(N (N + 1)) / a) the automatic step uses;
-#: the explicit part is stable up to 1.57 on the imaginary axis (tests), so this leaves a margin.
+#: The explicit part's stability limit on the imaginary axis (|z| = 1.5699, tests): a run whose
+#: advective Courant number |v|_max dt sqrt(N (N + 1)) / a exceeds it is stopped as failed.
+STABILITY_LIMIT = 1.57
+#: Largest Courant number an automatic step may reach before it is shortened (a margin below
+#: the stability limit for winds that grow between two output times).
 COURANT_LIMIT = 1.2
 
 Tendency = Callable[[np.ndarray, float, np.ndarray], np.ndarray]

@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import math
 import time
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
 import numpy as np
 import xarray as xr
@@ -16,7 +16,9 @@ from torrid.io.runfile import build_dataset
 from torrid.physics import invariants
 from torrid.physics.fields import grid_state
 from torrid.physics.diagnostics import DIAGNOSTIC_VARIABLES, planet_diagnostics
-from torrid.workflow.setup import Model, build_model
+from torrid.physics.timestepping import COURANT_LIMIT, IMEXStepper, courant_number
+from torrid.workflow.health import check_step
+from torrid.workflow.setup import Model, build_model, choose_time_step
 from torrid.workflow.steady import SteadyCriterion, is_steady
 
 
@@ -86,6 +88,7 @@ def snapshot(model: Model, state: np.ndarray, time_s: float = 0.0) -> dict[str, 
     out = {k: _to_output_grid(v) for k, v in out.items()}
     if model.forcing is not None:
         out.update(planet_snapshot(model, state, time_s))
+    out["max_speed"] = float(np.sqrt(fields["u"] ** 2 + fields["v"] ** 2).max())
     out["mean_thickness"] = invariants.mean_thickness(grid, thickness)
     out["total_energy"] = invariants.total_energy(grid, thickness, fields["u"], fields["v"],
                                                   model.surface_height_m, g)
@@ -94,45 +97,115 @@ def snapshot(model: Model, state: np.ndarray, time_s: float = 0.0) -> dict[str, 
     return out
 
 
+class RunFailedError(RuntimeError):
+    """A run stopped by a failed health check; ``dataset`` holds the output up to then."""
+
+    def __init__(self, message: str, dataset: xr.Dataset):
+        super().__init__(message)
+        self.dataset = dataset
+
+
+@dataclass
+class _Progress:
+    """Mutable bookkeeping of a run in progress (all times in seconds unless named days)."""
+
+    state: np.ndarray
+    stepper: object
+    steps_per_output: int
+    outputs_done: int = 0  # output intervals completed
+    steps: int = 0
+    times_days: list = field(default_factory=lambda: [0.0])
+    series: dict = field(default_factory=dict)
+    dt_changes: list = field(default_factory=list)
+
+    @property
+    def dt(self) -> float:
+        return self.stepper.dt
+
+
+def _adapt_time_step(model: Model, run: _Progress) -> None:
+    """Shorten an automatic step whose Courant number has grown past COURANT_LIMIT."""
+    if model.config.numerics.time_step_s is not None:
+        return
+    speed = float(run.series["max_speed"][-1])
+    if courant_number(speed, run.dt, model.config.planet.radius_m,
+                      model.grid.truncation) <= COURANT_LIMIT:
+        return
+    dt, steps = choose_time_step(model.config, speed)
+    if dt < run.dt:
+        run.stepper = IMEXStepper(model.dynamics, model.linear, dt, run.state.shape)
+        run.steps_per_output = steps
+        run.dt_changes.append((run.times_days[-1], dt))
+
+
 def integrate(model: Model, progress: bool = True, label: str = "") -> tuple[xr.Dataset, RunSummary]:
-    """Run ``model`` for the configured days; return the run dataset and its summary."""
+    """Run ``model`` for the configured days; return the run dataset and its summary.
+
+    The run length is rounded up to a whole number of output intervals. An automatic time step
+    is shortened at an output time if the winds have grown past :data:`COURANT_LIMIT`.
+    Raises :class:`RunFailedError` (with the dataset up to the last good state) if a step
+    fails its health check (:mod:`torrid.workflow.health`).
+    """
     config = model.config
-    dt = model.dt
-    nsteps = max(1, round(config.run.days * SECONDS_PER_DAY / dt))
-    state = model.initial_state
-    times, series = [0.0], {}
-    _append(series, snapshot(model, state, 0.0))
+    interval_s = config.run.output_interval_days * SECONDS_PER_DAY
+    n_outputs = max(1, math.ceil(config.run.days / config.run.output_interval_days - 1e-9))
+    run = _Progress(state=model.initial_state, stepper=model.stepper,
+                    steps_per_output=model.steps_per_output)
+    _append(run.series, snapshot(model, run.state, 0.0))
     criterion = steady_criterion(model)
-    steady_day = None
-    bar = tqdm(total=round(nsteps * dt / SECONDS_PER_DAY, 6), unit="day", disable=not progress,
-               desc=label or model.label, leave=False, dynamic_ncols=True,
+    status, reason = "complete", ""
+    bar = tqdm(total=round(n_outputs * config.run.output_interval_days, 6), unit="day",
+               disable=not progress, desc=label or model.label, leave=False, dynamic_ncols=True,
                bar_format="{desc}: {percentage:3.0f}%|{bar}| {n:.2f}/{total:g} days "
                           "[{elapsed}<{remaining}, {rate_fmt}]")
     start = time.perf_counter()
-    time_s = 0.0
-    for step in range(1, nsteps + 1):
-        state = model.stepper.step(state, time_s)
-        time_s = step * dt
-        bar.update(dt / SECONDS_PER_DAY)
-        if step % model.steps_per_output == 0 or step == nsteps:
-            times.append(time_s / SECONDS_PER_DAY)
-            _append(series, snapshot(model, state, time_s))
-            if criterion is not None and is_steady(times, series, criterion):
-                steady_day = times[-1]
+    problem = None
+    while run.outputs_done < n_outputs and problem is None:
+        base_s = run.outputs_done * interval_s
+        for j in range(run.steps_per_output):
+            time_s = base_s + j * run.dt
+            new_state = run.stepper.step(run.state, time_s)
+            run.steps += 1
+            problem = check_step(model, new_state, (time_s + run.dt) / SECONDS_PER_DAY, run.dt)
+            if problem is not None:
                 break
+            run.state = new_state
+            bar.update(run.dt / SECONDS_PER_DAY)
+        if problem is not None:  # keep the last good state as the final output
+            time_s = base_s + j * run.dt
+        else:
+            run.outputs_done += 1
+            time_s = run.outputs_done * interval_s
+        run.times_days.append(time_s / SECONDS_PER_DAY)
+        _append(run.series, snapshot(model, run.state, time_s))
+        if problem is None and criterion is not None and is_steady(run.times_days, run.series,
+                                                                    criterion):
+            status, reason = "steady", f"steady state reached at day {run.times_days[-1]:g}"
+            break
+        if problem is None:
+            _adapt_time_step(model, run)
+    if problem is not None:
+        status, reason = "failed", problem.message()
     wall = time.perf_counter() - start
     bar.close()
     summary = RunSummary(
-        simulated_days=time_s / SECONDS_PER_DAY, wall_seconds=wall, steps=step,
-        mass_change_relative=_relative_change(series["mean_thickness"]),
-        energy_change_relative=_relative_change(series["total_energy"]),
+        simulated_days=run.times_days[-1], wall_seconds=wall, steps=run.steps,
+        mass_change_relative=_relative_change(run.series["mean_thickness"]),
+        energy_change_relative=_relative_change(run.series["total_energy"]),
     )
     lat, lon = output_coordinates(model)
     static = {"surface_height": _to_output_grid(model.surface_height_m)}
     attrs = _run_attrs(model, summary)
+    attrs.update(run_status=status, run_status_reason=reason or "ran the configured days",
+                 time_step_changes="; ".join(f"day {d:g}: {dt:.6g} s" for d, dt in run.dt_changes)
+                 or "none")
     if model.forcing is not None:
-        attrs.update(_planet_attrs(model, series, criterion, steady_day))
-    ds = build_dataset(times, lat, lon, series, static, attrs)
+        steady_day = run.times_days[-1] if status == "steady" else None
+        attrs.update(_planet_attrs(model, run.series, criterion, steady_day))
+    series = {k: v for k, v in run.series.items() if k != "max_speed"}
+    ds = build_dataset(run.times_days, lat, lon, series, static, attrs)
+    if problem is not None:
+        raise RunFailedError(problem.message(), ds)
     return ds, summary
 
 

@@ -1,7 +1,9 @@
 """The ``torrid`` command line: one module per subcommand group, this module dispatches.
 
 Errors the user can fix (bad options, bad files, existing outputs) are reported as one line,
-``torrid: error: ...``, with exit status 2 and no traceback (``--debug`` shows it).
+``torrid: error: ...``, with exit status 2 and no traceback (``--debug`` shows it). A run that
+fails (blow-up) is reported as ``torrid: run failed: ...`` with exit status 3; its run file is
+still written, with ``run_status = "failed"``.
 """
 
 from __future__ import annotations
@@ -12,6 +14,7 @@ import sys
 from torrid import __version__
 from torrid.interface.cli import plot as plot_cmd
 from torrid.interface.cli import run as run_cmd
+from torrid.workflow.driver import RunFailedError
 
 SUBCOMMANDS = {"run": run_cmd, "plot": plot_cmd}
 USER_ERRORS = (ValueError, FileExistsError, FileNotFoundError, KeyError)
@@ -46,6 +49,11 @@ def main(argv: list[str] | None = None) -> int:
         message = str(err).strip().splitlines()[0] if str(err).strip() else type(err).__name__
         print(f"torrid: error: {message}", file=sys.stderr)
         return 2
+    except RunFailedError as err:
+        if args.debug:
+            raise
+        print(f"torrid: {err}", file=sys.stderr)
+        return 3
     except KeyboardInterrupt:
         print("torrid: interrupted", file=sys.stderr)
         return 130
