@@ -18,7 +18,9 @@ from torrid.io.config import CaseConfig, ModelConfig, NumericsConfig, PlanetConf
 from torrid.io.runfile import check_writable, write_atomic
 from torrid.io.tomlfile import load_config
 from torrid.physics.cases import CASES
+from torrid.io.config import ConfigError
 from torrid.workflow.driver import RunFailedError, run_config
+from torrid.workflow.restart import RestartStore
 
 
 def build_case_config(case: str = "williamson6", *, truncation: int = 42,
@@ -68,17 +70,24 @@ def build_case_config(case: str = "williamson6", *, truncation: int = 42,
 
 
 def run(config: ModelConfig, output: str | os.PathLike | None = None, *,
-        overwrite: bool = False, progress: bool = False) -> xr.Dataset:
+        overwrite: bool = False, progress: bool = False, resume: bool = False) -> xr.Dataset:
     """Run ``config`` and return its run dataset; also write it to ``output`` if given.
 
     An existing ``output`` is refused (before any work) unless ``overwrite``. A run that
     fails its health checks raises :class:`torrid.workflow.driver.RunFailedError` after
     writing ``output`` with ``run_status = "failed"`` and the last good state.
+
+    With ``output``, restart data are kept beside it (``.NAME.nc.restart/``, see
+    :mod:`torrid.workflow.restart`); ``resume=True`` continues an interrupted run from them.
     """
+    store = None
     if output is not None:
         check_writable(output, overwrite)
+        store = RestartStore(output)
+    elif resume:
+        raise ConfigError("resume: needs the run file name (output) to find its restart data")
     try:
-        ds, summary = run_config(config, progress=progress)
+        ds, summary = run_config(config, progress=progress, restart=store, resume=resume)
     except RunFailedError as failure:  # keep what was computed: status "failed" in the file
         if output is not None:
             write_atomic(failure.dataset, output, overwrite=overwrite)

@@ -143,6 +143,9 @@ class RunConfig:
         Relative change of the global diagnostics allowed over the trailing window.
     steady_window_days : float or None
         Trailing window (days); ``None``: the longer of 3 rotation periods and 5 tau_rad.
+    restart_interval_days : float
+        Simulated days between restart files (rounded to whole output intervals); runs that
+        write a run file also write restart data at the end.
     """
 
     days: float = 200.0
@@ -150,6 +153,7 @@ class RunConfig:
     stop_at_steady_state: bool = True
     steady_tolerance: float = 1e-2
     steady_window_days: float | None = None
+    restart_interval_days: float = 10.0
 
     def __post_init__(self):
         s, set_ = "run", object.__setattr__
@@ -167,6 +171,9 @@ class RunConfig:
             set_(self, "steady_window_days", _number(s, "steady_window_days",
                                                      self.steady_window_days, minimum=0,
                                                      strict_min=True))
+        set_(self, "restart_interval_days", _number(s, "restart_interval_days",
+                                                    self.restart_interval_days, minimum=0,
+                                                    strict_min=True))
 
 
 @dataclass(frozen=True)

@@ -17,15 +17,15 @@ import numpy as np
 def solve_kepler(mean_anomaly_rad, eccentricity: float, tol: float = 1e-15, max_iter: int = 50):
     """Eccentric anomaly E (rad) solving Kepler's equation M = E - e sin E (0 <= e < 1).
 
-    Newton's iteration from E0 = M + e sin M (Danby's starting value), which converges
-    quadratically for all M when e < 1.
+    Newton's iteration from Danby's (1987) starting value E0 = M + 0.85 e sign(sin M), which
+    converges for every M when e < 1 (the simpler E0 = M + e sin M diverges for e near 1).
     """
     if not 0 <= eccentricity < 1:
         raise ValueError(f"eccentricity must be in [0, 1), got {eccentricity}")
     m = np.asarray(mean_anomaly_rad, dtype=float)
     e = eccentricity
     big = np.remainder(m + np.pi, 2 * np.pi) - np.pi  # reduce to [-pi, pi)
-    ecc = big + e * np.sin(big)
+    ecc = big + 0.85 * e * np.sign(np.sin(big))
     for _ in range(max_iter):
         delta = (ecc - e * np.sin(ecc) - big) / (1 - e * np.cos(ecc))
         ecc = ecc - delta

@@ -18,7 +18,8 @@ from torrid.physics.fields import grid_state
 from torrid.physics.diagnostics import DIAGNOSTIC_VARIABLES, planet_diagnostics
 from torrid.physics.timestepping import COURANT_LIMIT, IMEXStepper, courant_number
 from torrid.workflow.health import check_step
-from torrid.workflow.setup import Model, build_model, choose_time_step
+from torrid.workflow.restart import RestartStore
+from torrid.workflow.setup import Model, build_model
 from torrid.workflow.steady import SteadyCriterion, is_steady
 
 
@@ -123,38 +124,76 @@ class _Progress:
         return self.stepper.dt
 
 
-def _adapt_time_step(model: Model, run: _Progress) -> None:
-    """Shorten an automatic step whose Courant number has grown past COURANT_LIMIT."""
-    if model.config.numerics.time_step_s is not None:
-        return
-    speed = float(run.series["max_speed"][-1])
-    if courant_number(speed, run.dt, model.config.planet.radius_m,
-                      model.grid.truncation) <= COURANT_LIMIT:
-        return
-    dt, steps = choose_time_step(model.config, speed)
-    if dt < run.dt:
-        run.stepper = IMEXStepper(model.dynamics, model.linear, dt, run.state.shape)
-        run.steps_per_output = steps
-        run.dt_changes.append((run.times_days[-1], dt))
+def _shorter_step(model: Model, run: _Progress, courant: float, span_s: float,
+                  now_s: float) -> bool:
+    """Shorten an automatic step whose Courant number has passed COURANT_LIMIT.
+
+    The new step brings the Courant number back to ``numerics.courant_number`` and divides
+    ``span_s`` (the rest of the output interval) exactly. Returns True if it changed.
+    """
+    if model.config.numerics.time_step_s is not None or courant <= COURANT_LIMIT:
+        return False
+    target = run.dt * model.config.numerics.courant_number / courant
+    steps = max(1, math.ceil(span_s / target - 1e-9))
+    run.stepper = IMEXStepper(model.dynamics, model.linear, span_s / steps, run.state.shape)
+    run.dt_changes.append((now_s / SECONDS_PER_DAY, run.dt))
+    return True
 
 
-def integrate(model: Model, progress: bool = True, label: str = "") -> tuple[xr.Dataset, RunSummary]:
+def _restore(model: Model, store: RestartStore) -> _Progress:
+    """Rebuild the run's bookkeeping from its restart data (see :mod:`.restart`)."""
+    saved, state, outputs = store.read(model.config)
+    run = _Progress(state=state,
+                    stepper=IMEXStepper(model.dynamics, model.linear, saved["dt"], state.shape),
+                    steps_per_output=saved["steps_per_output"],
+                    outputs_done=saved["outputs_done"], steps=saved["steps"],
+                    times_days=list(saved["times_days"]),
+                    dt_changes=[tuple(c) for c in saved["dt_changes"]])
+    for snap in outputs:
+        _append(run.series, {k: (v if v.ndim else float(v)) for k, v in snap.items()})
+    return run
+
+
+def _save_restart(model: Model, store: RestartStore, run: _Progress) -> None:
+    store.write_state(model.config, {
+        "dt": run.dt, "steps_per_output": run.steps_per_output,
+        "outputs_done": run.outputs_done, "steps": run.steps, "times_days": run.times_days,
+        "dt_changes": run.dt_changes, "outputs_written": len(run.times_days),
+    }, run.state)
+
+
+def integrate(model: Model, progress: bool = True, label: str = "",
+              restart: RestartStore | None = None,
+              resume: bool = False) -> tuple[xr.Dataset, RunSummary]:
     """Run ``model`` for the configured days; return the run dataset and its summary.
 
     The run length is rounded up to a whole number of output intervals. An automatic time step
-    is shortened at an output time if the winds have grown past :data:`COURANT_LIMIT`.
+    is shortened as soon as the winds push the Courant number past :data:`COURANT_LIMIT`
+    (the step then divides the rest of the output interval, and the following intervals).
+    With a ``restart`` store, restart data are written every ``run.restart_interval_days``
+    and at the end; ``resume`` continues from them (bit for bit equal to a straight run).
     Raises :class:`RunFailedError` (with the dataset up to the last good state) if a step
     fails its health check (:mod:`torrid.workflow.health`).
     """
     config = model.config
     interval_s = config.run.output_interval_days * SECONDS_PER_DAY
     n_outputs = max(1, math.ceil(config.run.days / config.run.output_interval_days - 1e-9))
-    run = _Progress(state=model.initial_state, stepper=model.stepper,
-                    steps_per_output=model.steps_per_output)
-    _append(run.series, snapshot(model, run.state, 0.0))
+    restart_every = max(1, round(config.run.restart_interval_days
+                                 / config.run.output_interval_days))
+    if resume and restart is not None:
+        run = _restore(model, restart)
+    else:
+        run = _Progress(state=model.initial_state, stepper=model.stepper,
+                        steps_per_output=model.steps_per_output)
+        first = snapshot(model, run.state, 0.0)
+        _append(run.series, first)
+        if restart is not None:
+            restart.clear()
+            restart.write_output(0, first)
     criterion = steady_criterion(model)
     status, reason = "complete", ""
     bar = tqdm(total=round(n_outputs * config.run.output_interval_days, 6), unit="day",
+               initial=round(run.times_days[-1], 6),
                disable=not progress, desc=label or model.label, leave=False, dynamic_ncols=True,
                bar_format="{desc}: {percentage:3.0f}%|{bar}| {n:.2f}/{total:g} days "
                           "[{elapsed}<{remaining}, {rate_fmt}]")
@@ -162,30 +201,48 @@ def integrate(model: Model, progress: bool = True, label: str = "") -> tuple[xr.
     problem = None
     while run.outputs_done < n_outputs and problem is None:
         base_s = run.outputs_done * interval_s
-        for j in range(run.steps_per_output):
-            time_s = base_s + j * run.dt
+        segment_s, done, steps = base_s, 0, run.steps_per_output  # steps of this segment
+        changed = False
+        while done < steps:
+            time_s = segment_s + done * run.dt
             new_state = run.stepper.step(run.state, time_s)
             run.steps += 1
-            problem = check_step(model, new_state, (time_s + run.dt) / SECONDS_PER_DAY, run.dt)
+            problem, courant = check_step(model, new_state, (time_s + run.dt) / SECONDS_PER_DAY,
+                                          run.dt)
             if problem is not None:
                 break
             run.state = new_state
+            done += 1
             bar.update(run.dt / SECONDS_PER_DAY)
+            now_s = segment_s + done * run.dt
+            rest_s = base_s + interval_s - now_s
+            if done < steps and _shorter_step(model, run, courant, rest_s, now_s):
+                segment_s, done, changed = now_s, 0, True
+                steps = round(rest_s / run.dt)
         if problem is not None:  # keep the last good state as the final output
-            time_s = base_s + j * run.dt
+            time_s = segment_s + done * run.dt
         else:
             run.outputs_done += 1
             time_s = run.outputs_done * interval_s
+            if changed:  # the step was shortened: the next intervals use it, dividing them
+                run.steps_per_output = max(1, math.ceil(interval_s / run.dt - 1e-9))
+                run.stepper = IMEXStepper(model.dynamics, model.linear,
+                                          interval_s / run.steps_per_output, run.state.shape)
         run.times_days.append(time_s / SECONDS_PER_DAY)
-        _append(run.series, snapshot(model, run.state, time_s))
+        taken = snapshot(model, run.state, time_s)
+        _append(run.series, taken)
+        if restart is not None and problem is None:
+            restart.write_output(len(run.times_days) - 1, taken)
+            if run.outputs_done % restart_every == 0:
+                _save_restart(model, restart, run)
         if problem is None and criterion is not None and is_steady(run.times_days, run.series,
                                                                     criterion):
             status, reason = "steady", f"steady state reached at day {run.times_days[-1]:g}"
             break
-        if problem is None:
-            _adapt_time_step(model, run)
     if problem is not None:
         status, reason = "failed", problem.message()
+    elif restart is not None:
+        _save_restart(model, restart, run)
     wall = time.perf_counter() - start
     bar.close()
     summary = RunSummary(
@@ -241,9 +298,10 @@ def _planet_attrs(model: Model, series: dict, criterion: SteadyCriterion | None,
     return out
 
 
-def run_config(config: ModelConfig, progress: bool = True) -> tuple[xr.Dataset, RunSummary]:
-    """Build and integrate the model of ``config``."""
-    return integrate(build_model(config), progress=progress)
+def run_config(config: ModelConfig, progress: bool = True, restart: RestartStore | None = None,
+               resume: bool = False) -> tuple[xr.Dataset, RunSummary]:
+    """Build and integrate the model of ``config`` (see :func:`integrate`)."""
+    return integrate(build_model(config), progress=progress, restart=restart, resume=resume)
 
 
 def _append(series: dict[str, list], values: dict) -> None:

@@ -24,6 +24,7 @@ class HealthProblem:
     lat_deg: float
     lon_deg: float
     value: float
+    automatic_step: bool = False
 
     def message(self) -> str:
         """One line: what, where, when, likely cause and fix."""
@@ -37,9 +38,15 @@ class HealthProblem:
                     "cause: forcing too strong for the layer or grid-scale noise; fix: a smaller "
                     "atmosphere.forcing_contrast, more hyperdiffusion (a smaller "
                     "numerics.hyperdiffusion_days) or a shorter numerics.time_step_s")
+        if self.automatic_step:  # the step was following the winds: they ran away
+            return (f"run blew up: advective Courant number {self.value:.3g} above the "
+                    f"scheme's limit {STABILITY_LIMIT} {where}, faster than the automatic step "
+                    "could follow; likely cause: growing grid-scale noise; fix: more "
+                    "hyperdiffusion (a smaller numerics.hyperdiffusion_days), a smaller "
+                    "atmosphere.forcing_contrast or a smaller numerics.courant_number")
         return (f"run failed: advective Courant number {self.value:.3g} above the scheme's "
-                f"limit {STABILITY_LIMIT} {where}; fix: a shorter numerics.time_step_s (or "
-                "leave it automatic) or a smaller numerics.courant_number")
+                f"limit {STABILITY_LIMIT} {where}; likely cause: the time step is too long "
+                "for the winds; fix: a shorter numerics.time_step_s (or leave it automatic)")
 
 
 def _location(grid, index: int) -> tuple[float, float]:
@@ -48,22 +55,25 @@ def _location(grid, index: int) -> tuple[float, float]:
     return float(np.degrees(grid.latitude[i])), float(lon - 360 if lon >= 180 else lon)
 
 
-def check_step(model, state: np.ndarray, day: float, dt: float) -> HealthProblem | None:
-    """Return the first problem of the step just taken, or None if it is healthy."""
+def check_step(model, state: np.ndarray, day: float,
+               dt: float) -> tuple[HealthProblem | None, float]:
+    """The first problem of the step just taken (None if healthy) and its Courant number."""
     grid = model.grid
     if not np.isfinite(state).all():
-        return HealthProblem("non-finite", day, float("nan"), float("nan"), float("nan"))
+        return HealthProblem("non-finite", day, float("nan"), float("nan"), float("nan")), np.inf
     dyn = model.dynamics
     geopotential = dyn._geopotential
     index = int(np.argmin(geopotential))
     thickness = (geopotential.flat[index] + dyn.mean_geopotential) / model.gravity_m_s2
     if not thickness > 0:
-        return HealthProblem("thickness", day, *_location(grid, index), float(thickness))
+        return HealthProblem("thickness", day, *_location(grid, index), float(thickness)), np.inf
     winds = dyn._winds
     speed2 = winds[0] * winds[0] + winds[1] * winds[1]
     index = int(np.argmax(speed2))
     courant = courant_number(float(np.sqrt(speed2.flat[index])), dt,
                              model.config.planet.radius_m, grid.truncation)
     if not courant <= STABILITY_LIMIT:
-        return HealthProblem("courant", day, *_location(grid, index), courant)
-    return None
+        automatic = model.config.numerics.time_step_s is None
+        return HealthProblem("courant", day, *_location(grid, index), courant,
+                             automatic), courant
+    return None, courant

@@ -60,6 +60,9 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     p.add_argument("-o", "--output", type=Path, default=None, metavar="FILE.nc",
                    help="run file to write (default: runs/<name>.nc)")
     p.add_argument("--overwrite", action="store_true", help="replace existing output files")
+    p.add_argument("--resume", action="store_true",
+                   help="continue an interrupted run from its latest restart data (kept "
+                        "beside the run file; same configuration, run.days may grow)")
     p.add_argument("--no-plot", action="store_true", help="planets: skip the map plot")
     p.add_argument("--quiet", "-q", action="store_true", help="no progress bar")
     p.set_defaults(handler=handle)
@@ -106,7 +109,8 @@ def handle(args: argparse.Namespace) -> int:
     image = output.with_suffix(".png")
     if config.is_planet and not args.no_plot and image.exists() and not args.overwrite:
         raise FileExistsError(f"{image} exists: choose another name or pass --overwrite")
-    ds = run(config, output, overwrite=args.overwrite, progress=not args.quiet)
+    ds = run(config, output, overwrite=args.overwrite, progress=not args.quiet,
+             resume=args.resume)
     print(f"{ds.attrs['summary']} -> {output}", file=sys.stdout)
     if config.is_planet:
         print(planet_line(ds), file=sys.stdout)
