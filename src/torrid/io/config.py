@@ -22,22 +22,32 @@ class ConfigError(ValueError):
     """A configuration value or key that is not allowed (the message is one line)."""
 
 
+def _show(value) -> str:
+    """repr of a value, shortened so an error message stays one readable line."""
+    text = repr(value)
+    return text if len(text) <= 40 else text[:37] + "..."
+
+
 def _number(section: str, key: str, value, *, minimum=None, maximum=None, strict_min=False,
             allow_inf=False, integer=False):
     """Check one numeric value; return it as float/int or raise ConfigError."""
     where = f"{section}.{key}"
     if isinstance(value, bool) or not isinstance(value, (int, float)):
         kind = "an integer" if integer else "a number"
-        raise ConfigError(f"{where} = {value!r}: must be {kind}")
-    if integer and not (isinstance(value, int) or float(value).is_integer()):
-        raise ConfigError(f"{where} = {value!r}: must be an integer")
-    if math.isnan(value) or (math.isinf(value) and not allow_inf):
-        raise ConfigError(f"{where} = {value!r}: must be a finite number")
+        raise ConfigError(f"{where} = {_show(value)}: must be {kind}")
+    try:
+        as_float = float(value)
+    except OverflowError:
+        raise ConfigError(f"{where} = {_show(value)}: too large") from None
+    if integer and not (isinstance(value, int) or as_float.is_integer()):
+        raise ConfigError(f"{where} = {_show(value)}: must be an integer")
+    if math.isnan(as_float) or (math.isinf(as_float) and not allow_inf):
+        raise ConfigError(f"{where} = {_show(value)}: must be a finite number")
     if minimum is not None and (value <= minimum if strict_min else value < minimum):
         op = ">" if strict_min else ">="
-        raise ConfigError(f"{where} = {value!r}: must be {op} {minimum}")
+        raise ConfigError(f"{where} = {_show(value)}: must be {op} {minimum}")
     if maximum is not None and value > maximum:
-        raise ConfigError(f"{where} = {value!r}: must be <= {maximum}")
+        raise ConfigError(f"{where} = {_show(value)}: must be <= {maximum}")
     return int(value) if integer else float(value)
 
 
@@ -194,8 +204,8 @@ class CaseConfig:
     def __post_init__(self):
         from torrid.physics.cases import CASES
 
-        if self.name not in CASES:
-            raise ConfigError(f"case.name = {self.name!r}: must be one of {', '.join(CASES)}")
+        if not isinstance(self.name, str) or self.name not in CASES:
+            raise ConfigError(f"case.name = {_show(self.name)}: must be one of {', '.join(CASES)}")
         a = _number("case", "alpha_rad", self.alpha_rad, minimum=-math.pi, maximum=math.pi)
         if a != 0 and self.name != "williamson2":
             raise ConfigError(f"case.alpha_rad = {a!r}: only williamson2 takes a tilt angle")
@@ -270,8 +280,8 @@ class OrbitConfig:
         if e >= 1:
             raise ConfigError(f"orbit.eccentricity = {e!r}: must be in [0, 1) (a bound orbit)")
         set_(self, "eccentricity", e)
-        if self.rotation not in ROTATION_CHOICES:
-            raise ConfigError(f"orbit.rotation = {self.rotation!r}: must be one of "
+        if not isinstance(self.rotation, str) or self.rotation not in ROTATION_CHOICES:
+            raise ConfigError(f"orbit.rotation = {_show(self.rotation)}: must be one of "
                               f"{', '.join(ROTATION_CHOICES)}")
         if self.orbital_period_days is not None:
             set_(self, "orbital_period_days", _number(s, "orbital_period_days",
