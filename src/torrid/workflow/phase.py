@@ -31,7 +31,6 @@ curve (its peak-to-peak amplitude and offset), and the map's own hotspot offsets
 
 from __future__ import annotations
 
-import json
 import math
 import warnings
 
@@ -171,10 +170,13 @@ def _phase_curve(ds: xr.Dataset, settings: ObserverSettings, source: str) -> xr.
     if steady:
         snap = h.isel(time=-1) if "time" in h.dims else h
         lon_sub = _last_substellar_longitude(ds)
-        temperature = thickness_to_temperature(snap, big_h, contrast, t_night, t_day)
-        temperature = xr.DataArray(temperature).transpose(*param_dims, *MAP_DIMS) \
-            if isinstance(temperature, xr.DataArray) else temperature
-        intensity = band.radiance(np.asarray(temperature))
+        snap, big_h, contrast = xr.broadcast(snap, xr.DataArray(big_h), xr.DataArray(contrast))
+        param_dims = [d for d in snap.dims if d not in MAP_DIMS]
+        order = (*param_dims, *MAP_DIMS)
+        temperature = thickness_to_temperature(*(a.transpose(*order).values
+                                                 for a in (snap, big_h, contrast)),
+                                               t_night, t_day)
+        intensity = band.radiance(temperature)
         disk = quad.integrate(intensity, obs_lat, lon_sub + offset)
         map_source = (f"final map (day {float(snap['time']):g})" if "time" in snap.coords
                       else "the dataset's map")
@@ -190,7 +192,8 @@ def _phase_curve(ds: xr.Dataset, settings: ObserverSettings, source: str) -> xr.
     coords = {d: ds[d] for d in param_dims if d in ds.coords}
     return _assemble(ds, settings, band, ratio, disk, phases[:n], phase_ecl, coords, param_dims,
                      offset[:n], times, dict(t_night=t_night, t_day=t_day, t0=t0,
-                                             orbit_source=orbit_source, map_source=map_source))
+                                             orbit_source=orbit_source, map_source=map_source,
+                                             source=source))
 
 
 def _last_substellar_longitude(ds: xr.Dataset) -> float:
@@ -315,10 +318,9 @@ def _attributes(ds, settings: ObserverSettings, band: Band, info: dict) -> dict:
         "argument_of_periastron_deg": s.argument_of_periastron, "phases": s.phases,
         "temperature_map": "T = T_night + (T_day - T_night) (h - H) / (H dH/H)",
         "map_source": info["map_source"], "orbit_source": info["orbit_source"],
-        "source_run": ds.attrs.get("source_file", ""),
+        "source_run": info["source"],
         "run_configuration_json": ds.attrs.get("configuration_json", ""),
         "run_title": ds.attrs.get("title", ""),
     }
     attrs.update(provenance_attrs({"observer": s.to_dict()}))
-    attrs["configuration_json"] = json.dumps({"observer": s.to_dict()}, sort_keys=True)
     return attrs
