@@ -17,6 +17,8 @@ class TorridWarning(UserWarning):
     """Warnings issued by torrid itself (turned into errors in the test suite)."""
 
 
+from torrid.interface import accessor as _accessor  # noqa: E402,F401  (registers ds.torrid)
+
 _API = ("build_case_config", "run", "ModelConfig", "load_config")
 __all__ = ["__version__", "TorridWarning", *_API]
 

@@ -22,6 +22,8 @@ from torrid.io.config import ConfigError
 from torrid.workflow.driver import RunFailedError, run_config
 from torrid.workflow.restart import RestartStore
 
+__all__ = ["build_case_config", "run", "load_config", "ModelConfig"]
+
 
 def build_case_config(case: str = "williamson6", *, truncation: int = 42,
                       days: float | None = None, output_interval_days: float | None = None,

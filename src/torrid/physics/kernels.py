@@ -17,7 +17,6 @@ from __future__ import annotations
 
 import os
 
-import numpy as np
 
 
 def grid_products_numpy(vorticity, coriolis, geopotential, winds, weights, force_east,

@@ -11,91 +11,15 @@ import xarray as xr
 from tqdm.auto import tqdm
 
 from torrid.io.config import SECONDS_PER_DAY, ModelConfig
-from torrid.io.provenance import provenance_attrs
 from torrid.io.runfile import build_dataset
-from torrid.physics import invariants
-from torrid.physics.fields import grid_state
-from torrid.physics.diagnostics import DIAGNOSTIC_VARIABLES, planet_diagnostics
-from torrid.physics.timestepping import COURANT_LIMIT, IMEXStepper, courant_number
+from torrid.physics.timestepping import COURANT_LIMIT, IMEXStepper
 from torrid.workflow.health import check_step
+from torrid.workflow.output import (RunSummary, append_snapshot, output_coordinates,
+                                    planet_attrs, relative_change, run_attrs, snapshot,
+                                    to_output_grid)
 from torrid.workflow.restart import RestartStore
 from torrid.workflow.setup import Model, build_model
 from torrid.workflow.steady import SteadyCriterion, is_steady
-
-
-@dataclass(frozen=True)
-class RunSummary:
-    """What the end-of-run line reports."""
-
-    simulated_days: float
-    wall_seconds: float
-    steps: int
-    mass_change_relative: float
-    energy_change_relative: float
-
-    @property
-    def days_per_second(self) -> float:
-        """Simulated days per wall-clock second."""
-        return self.simulated_days / self.wall_seconds if self.wall_seconds > 0 else math.inf
-
-    def line(self, label: str) -> str:
-        """One-line human summary."""
-        return (f"{label}: {self.simulated_days:g} days in {self.steps} steps, "
-                f"{self.wall_seconds:.1f} s ({self.days_per_second:.3g} simulated days/s); "
-                f"mass change {self.mass_change_relative:.2e}, "
-                f"energy change {self.energy_change_relative:.2e} (relative)")
-
-
-def _to_output_grid(field: np.ndarray) -> np.ndarray:
-    """Model grid (north to south, lon from 0) -> output (south to north, lon from -180)."""
-    return np.roll(field[::-1], field.shape[-1] // 2, axis=-1)
-
-
-def output_coordinates(model: Model) -> tuple[np.ndarray, np.ndarray]:
-    """Output latitudes (ascending, degrees_north) and longitudes ([-180, 180), degrees_east)."""
-    lat = np.degrees(model.grid.latitude[::-1])
-    lon = np.degrees(model.grid.longitude)
-    lon = np.roll(np.where(lon >= 180, lon - 360, lon), model.grid.nlon // 2)
-    return lat, lon
-
-
-def planet_snapshot(model: Model, state: np.ndarray, time_s: float) -> dict[str, float]:
-    """Hot-planet diagnostics of one state at ``time_s`` (s)."""
-    forcing = model.forcing
-    lon_sub, _ = forcing.state_at(time_s)
-    h_eq = forcing.equilibrium(time_s) / model.gravity_m_s2
-    out = planet_diagnostics(model.transforms, state, mean_geopotential=model.mean_geopotential,
-                             gravity_m_s2=model.gravity_m_s2,
-                             rotation_rate_s=model.rotation_rate_s,
-                             substellar_longitude_rad=lon_sub, equilibrium_thickness_m=h_eq)
-    phi = model.transforms.to_grid(state[2])
-    out["mean_mass_source"] = model.grid.global_mean(forcing.heating(time_s, phi)) / model.gravity_m_s2
-    out["substellar_longitude"] = float(np.degrees(lon_sub))
-    out["star_distance_ratio"] = float(model.orbit.distance_ratio(time_s))
-    return out
-
-
-def snapshot(model: Model, state: np.ndarray, time_s: float = 0.0) -> dict[str, np.ndarray | float]:
-    """Output fields and global invariants of one state (output-grid orientation)."""
-    fields = grid_state(model.transforms, state)
-    g = model.gravity_m_s2
-    thickness = (fields["geopotential_deviation"] + model.mean_geopotential) / g
-    grid = model.grid
-    out = {
-        "h": thickness + model.surface_height_m,
-        "u": fields["u"], "v": fields["v"],
-        "vorticity": fields["vorticity"], "divergence": fields["divergence"],
-    }
-    out = {k: _to_output_grid(v) for k, v in out.items()}
-    if model.forcing is not None:
-        out.update(planet_snapshot(model, state, time_s))
-    out["max_speed"] = float(np.sqrt(fields["u"] ** 2 + fields["v"] ** 2).max())
-    out["mean_thickness"] = invariants.mean_thickness(grid, thickness)
-    out["total_energy"] = invariants.total_energy(grid, thickness, fields["u"], fields["v"],
-                                                  model.surface_height_m, g)
-    out["potential_enstrophy"] = invariants.potential_enstrophy(
-        grid, thickness, fields["vorticity"], model.dynamics.coriolis)
-    return out
 
 
 class RunFailedError(RuntimeError):
@@ -150,7 +74,7 @@ def _restore(model: Model, store: RestartStore) -> _Progress:
                     times_days=list(saved["times_days"]),
                     dt_changes=[tuple(c) for c in saved["dt_changes"]])
     for snap in outputs:
-        _append(run.series, {k: (v if v.ndim else float(v)) for k, v in snap.items()})
+        append_snapshot(run.series, {k: (v if v.ndim else float(v)) for k, v in snap.items()})
     return run
 
 
@@ -186,7 +110,7 @@ def integrate(model: Model, progress: bool = True, label: str = "",
         run = _Progress(state=model.initial_state, stepper=model.stepper,
                         steps_per_output=model.steps_per_output)
         first = snapshot(model, run.state, 0.0)
-        _append(run.series, first)
+        append_snapshot(run.series, first)
         if restart is not None:
             restart.clear()
             restart.write_output(0, first)
@@ -230,7 +154,7 @@ def integrate(model: Model, progress: bool = True, label: str = "",
                                           interval_s / run.steps_per_output, run.state.shape)
         run.times_days.append(time_s / SECONDS_PER_DAY)
         taken = snapshot(model, run.state, time_s)
-        _append(run.series, taken)
+        append_snapshot(run.series, taken)
         if restart is not None and problem is None:
             restart.write_output(len(run.times_days) - 1, taken)
             if run.outputs_done % restart_every == 0:
@@ -247,18 +171,18 @@ def integrate(model: Model, progress: bool = True, label: str = "",
     bar.close()
     summary = RunSummary(
         simulated_days=run.times_days[-1], wall_seconds=wall, steps=run.steps,
-        mass_change_relative=_relative_change(run.series["mean_thickness"]),
-        energy_change_relative=_relative_change(run.series["total_energy"]),
+        mass_change_relative=relative_change(run.series["mean_thickness"]),
+        energy_change_relative=relative_change(run.series["total_energy"]),
     )
     lat, lon = output_coordinates(model)
-    static = {"surface_height": _to_output_grid(model.surface_height_m)}
-    attrs = _run_attrs(model, summary)
+    static = {"surface_height": to_output_grid(model.surface_height_m)}
+    attrs = run_attrs(model, summary)
     attrs.update(run_status=status, run_status_reason=reason or "ran the configured days",
                  time_step_changes="; ".join(f"day {d:g}: {dt:.6g} s" for d, dt in run.dt_changes)
                  or "none")
     if model.forcing is not None:
         steady_day = run.times_days[-1] if status == "steady" else None
-        attrs.update(_planet_attrs(model, run.series, criterion, steady_day))
+        attrs.update(planet_attrs(model, run.series, criterion, steady_day))
     series = {k: v for k, v in run.series.items() if k != "max_speed"}
     ds = build_dataset(run.times_days, lat, lon, series, static, attrs)
     if problem is not None:
@@ -279,62 +203,9 @@ def steady_criterion(model: Model) -> SteadyCriterion | None:
                                    run.steady_tolerance, run.steady_window_days, cycle)
 
 
-def _planet_attrs(model: Model, series: dict, criterion: SteadyCriterion | None,
-                  steady_day: float | None) -> dict:
-    atm = model.config.atmosphere
-    out = {
-        "steady_state_reached": int(steady_day is not None),
-        "steady_state_time_days": steady_day if steady_day is not None else float("nan"),
-        "steady_state_criterion": ("none (run.stop_at_steady_state = false)" if criterion is None
-                                   else f"window {criterion.window_days:g} days, tolerance "
-                                        f"{criterion.tolerance:g}"
-                                        + ("" if model.orbit.is_steady
-                                           else ", whole orbits (orbit-to-orbit repeat)")),
-        "nightside_thickness_m": atm.mean_geopotential_m2_s2 / model.gravity_m_s2,
-        "forcing_contrast": atm.forcing_contrast,
-    }
-    for name in DIAGNOSTIC_VARIABLES:
-        out[f"final_{name}"] = float(series[name][-1])
-    return out
-
-
 def run_config(config: ModelConfig, progress: bool = True, restart: RestartStore | None = None,
                resume: bool = False) -> tuple[xr.Dataset, RunSummary]:
     """Build and integrate the model of ``config`` (see :func:`integrate`)."""
     return integrate(build_model(config), progress=progress, restart=restart, resume=resume)
 
 
-def _append(series: dict[str, list], values: dict) -> None:
-    for key, value in values.items():
-        series.setdefault(key, []).append(value)
-
-
-def _relative_change(values: list[float]) -> float:
-    return float((values[-1] - values[0]) / abs(values[0])) if values[0] else float("nan")
-
-
-def _run_attrs(model: Model, summary: RunSummary) -> dict:
-    grid, case = model.grid, model.case
-    if case is None:
-        described = {"title": "torrid run: forced hot gas giant", "case": "planet",
-                     "references": "forcing: Showman & Polvani (2011); "
-                                   "Perez-Becker & Showman (2013)"}
-    else:
-        described = {"title": f"torrid run: {case.title}", "case": case.name,
-                     "references": case.reference}
-    return {
-        **described,
-        **provenance_attrs(model.config.to_dict()),
-        "truncation": f"T{grid.truncation}",
-        "grid": f"Gauss-Legendre, {grid.nlat} latitudes x {grid.nlon} longitudes",
-        "time_step_s": model.dt,
-        "time_scheme": "IMEX Runge-Kutta ARS(4,4,3), gravity waves and damping implicit",
-        "hyperdiffusion": (f"del^{2 * model.hyperdiffusion_order}, e-folding "
-                           f"{model.hyperdiffusion_days:g} days at l = {grid.truncation}"),
-        "mean_geopotential_m2_s2": model.mean_geopotential,
-        "gravity_m_s2": model.gravity_m_s2,
-        "radius_m": model.config.planet.radius_m,
-        "rotation_rate_s": model.rotation_rate_s,
-        "steps": summary.steps,
-        "wall_time_s": round(summary.wall_seconds, 3),
-    }

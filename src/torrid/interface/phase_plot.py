@@ -1,0 +1,61 @@
+"""Plot of a phase curve: flux ratio against orbital phase, eclipse and transit marked."""
+
+from __future__ import annotations
+
+import os
+
+import numpy as np
+import xarray as xr
+
+from torrid.interface.plots import plt, save_figure
+
+#: at most this many curves of a sweep are drawn in one plot
+MAX_CURVES = 12
+
+
+def plot_phase_curve(pc: xr.Dataset, path: str | os.PathLike | None = None,
+                     overwrite: bool = False):
+    """Flux ratio (ppm) against orbital phase, with transit (0, 1) and eclipse marked, the
+    curve's refined maximum and where the map's hotspot offset alone would put it.
+
+    Parameters
+    ----------
+    pc : xarray.Dataset
+        A phase-curve dataset (:func:`torrid.workflow.phase.phase_curve`); over sweep dims
+        up to ``MAX_CURVES`` curves are drawn.
+    path : path, optional
+        PNG to write (atomically; never replaced without ``overwrite``); the figure is
+        returned if omitted.
+    """
+    flux = pc["flux_ratio"]
+    stacked = flux.stack(point=[d for d in flux.dims if d != "phase"]) if flux.ndim > 1 else flux
+    curves = [stacked] if stacked.ndim == 1 else [stacked.isel(point=i) for i in
+                                                   range(min(MAX_CURVES, stacked.sizes["point"]))]
+    phase = np.append(pc["phase"].values, 1.0)
+    ecl = float(pc["eclipse_phase"])
+    fig, ax = plt.subplots(figsize=(8, 4.5), constrained_layout=True)
+    for curve in curves:
+        ax.plot(phase, np.append(curve.values, curve.values[0]), lw=1.6)
+    for x, label in ((0.0, "transit"), (ecl, "eclipse"), (1.0, None)):
+        ax.axvline(x, color="grey", ls="--", lw=0.9)
+        if label:
+            ax.annotate(f" {label}", (x, 0.98), xycoords=("data", "axes fraction"),
+                        ha="left", va="top", fontsize=8, color="grey")
+    if flux.ndim == 1:
+        peak = float(pc["phase_of_maximum"])
+        ax.plot(peak, float(pc["maximum_flux_ratio"]), "v", color="tab:red", ms=8,
+                label=f"curve maximum ({float(pc['offset_of_maximum']):+.1f} deg)")
+        offset = float(pc["map_hotspot_offset"])
+        if np.isfinite(offset):
+            where = (ecl - offset / 360.0) % 1.0
+            ax.axvline(where, color="tab:orange", lw=1.2,
+                       label=f"map hotspot offset ({offset:+.1f} deg)")
+        ax.legend(loc="lower center", fontsize=8)
+    ax.set_xlim(0, 1)
+    ax.set_xlabel("orbital phase (0: mid-transit)")
+    ax.set_ylabel("planet-to-star flux ratio (ppm)")
+    ax.set_title(f"thermal phase curve, {pc.attrs.get('band', '')}, inclination "
+                 f"{pc.attrs.get('inclination_deg', 90):g} deg", fontsize=10)
+    if path is None:
+        return fig
+    return save_figure(fig, path, overwrite)

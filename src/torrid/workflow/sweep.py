@@ -1,0 +1,310 @@
+"""The sweep runner: every point of a sweep to its run file, in parallel, resumably.
+
+:func:`run_sweep` takes a validated :class:`torrid.io.sweepfile.SweepSpec` and
+
+1. writes the manifest (``<folder>/sweep.json``) and a record file for each point whose
+   configuration does not validate (status failed, the validation error as the reason);
+2. skips every point that already has a usable file (``complete``/``steady``, or ``failed``
+   unless ``retry_failed``): so rerunning after an interruption, even a kill -9, runs only
+   what is left; files are renamed into place when whole, so a killed point leaves none;
+3. runs the rest in worker processes (``workers``, spawned, one thread each) or on an existing
+   dask.distributed cluster (``scheduler``), with a progress bar over the points;
+4. rebuilds the sweep table ``<folder>/<name>-table.nc`` from the folder (replacing the old
+   table: it is derived from the point files, which are never replaced).
+
+A point that blows up is a result (status failed with its reason), not a reason to stop.
+An unexpected error in a point (a bug, a full disk) is reported at the end, writes nothing and
+is retried by the next run. One sweep at a time may use a folder (a lock file).
+"""
+
+from __future__ import annotations
+
+import concurrent.futures as cf
+import contextlib
+import multiprocessing
+import os
+import time
+from dataclasses import dataclass, field
+from pathlib import Path
+
+from tqdm.auto import tqdm
+
+from torrid.io.pointfile import FAILED, FINISHED, canonical_json, read_point, write_failure_record
+from torrid.io.sweepfile import SweepPoint, SweepSpec
+from torrid.io.sweepmanifest import manifest_data, write_manifest
+from torrid.workflow import collect
+from torrid.workflow.sweep_task import THREAD_VARIABLES, ignore_interrupts, run_point
+
+LOCK_NAME = ".sweep.lock"
+
+
+class SweepError(ValueError):
+    """A sweep that cannot start or finish (one-line message)."""
+
+
+@dataclass
+class SweepOutcome:
+    """What a sweep run did.
+
+    Attributes
+    ----------
+    folder : Path
+        The sweep folder (absolute).
+    table_path : Path or None
+        The sweep table written at the end.
+    counts : dict
+        Points by status at the end (complete, steady, failed, missing).
+    ran : int
+        Points run now.
+    skipped : int
+        Points that had a usable file already.
+    failures : list of (str, str)
+        (file name, reason) of every failed point.
+    errors : list of str
+        Points that raised an unexpected error (nothing written; retried on the next run).
+    """
+
+    folder: Path
+    table_path: Path | None = None
+    counts: dict = field(default_factory=dict)
+    ran: int = 0
+    skipped: int = 0
+    failures: list = field(default_factory=list)
+    errors: list = field(default_factory=list)
+
+
+def default_workers() -> int:
+    """All cores this process may use."""
+    try:
+        return len(os.sched_getaffinity(0))
+    except AttributeError:  # not Linux
+        return os.cpu_count() or 1
+
+
+@contextlib.contextmanager
+def _folder_lock(folder: Path):
+    """Hold ``<folder>/.sweep.lock`` (released by the OS even on kill -9)."""
+    try:
+        import fcntl
+    except ImportError:  # no POSIX locks: no protection against two sweeps
+        yield
+        return
+    with open(folder / LOCK_NAME, "a") as handle:
+        try:
+            fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
+        except OSError:
+            raise SweepError(f"{folder}: another torrid sweep is running in this folder "
+                             "(wait for it, or stop it first)") from None
+        try:
+            yield
+        finally:
+            fcntl.flock(handle, fcntl.LOCK_UN)
+
+
+def _remove_stale_temporaries(folder: Path) -> None:
+    """Temporary files of writers killed mid-write (only safe while holding the lock)."""
+    for tmp in folder.glob(".*.tmp"):
+        tmp.unlink(missing_ok=True)
+
+
+@dataclass(frozen=True)
+class Plan:
+    """Which points of a sweep run now and which already have their result."""
+
+    points: list
+    to_run: list
+    results: dict  # identifier -> PointResult of the points not to run
+
+
+def plan_sweep(spec: SweepSpec, folder: Path, retry_failed: bool = False,
+               points: list[SweepPoint] | None = None) -> Plan:
+    """Sort the points of ``spec`` into those to run and those with a usable file."""
+    points = spec.points() if points is None else points
+    to_run, results = [], {}
+    for point in points:
+        result = read_point(folder / point.file_name, point.identifier)
+        if point.config is None:  # invalid configuration: a record, nothing to run
+            results[point.identifier] = result
+        elif result.status in FINISHED or (result.status == FAILED and not retry_failed):
+            results[point.identifier] = result
+        else:
+            to_run.append(point)
+    return Plan(points, to_run, results)
+
+
+def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | None = None,
+              retry_failed: bool = False, maps: bool = False,
+              progress: bool = True) -> SweepOutcome:
+    """Run every point of ``spec`` that has no usable file yet, then write the sweep table.
+
+    Parameters
+    ----------
+    spec : SweepSpec
+        The validated sweep (:func:`torrid.io.sweepfile.load_sweep`).
+    workers : int, optional
+        Local worker processes (default: all cores); ignored with ``scheduler``.
+    scheduler : str, optional
+        Address of a running dask.distributed scheduler (``tcp://host:8786``) to run the
+        points on instead; the sweep folder must be reachable by every worker.
+    retry_failed : bool
+        Also rerun points recorded as failed (blown-up runs).
+    maps : bool
+        Put the final h, u, v maps into the sweep table.
+    progress : bool
+        Show the progress bar.
+    """
+    if workers is not None and workers < 1:
+        raise SweepError(f"--workers = {workers}: must be >= 1")
+    folder = spec.folder.resolve()
+    folder.mkdir(parents=True, exist_ok=True)
+    outcome = SweepOutcome(folder=folder)
+    with _folder_lock(folder):
+        points = spec.points()
+        write_manifest(folder, manifest_data(spec, points))
+        if scheduler is None:
+            _remove_stale_temporaries(folder)
+        for point in points:
+            if point.config is None and not read_point(folder / point.file_name,
+                                                       point.identifier).is_result:
+                write_failure_record(folder / point.file_name, point.data,
+                                     f"invalid configuration: {point.error}", overwrite=True)
+        plan = plan_sweep(spec, folder, retry_failed, points)
+        outcome.skipped = len(plan.results)
+        if plan.to_run:
+            outcome.errors = _execute(plan, folder, workers, scheduler, progress)
+        outcome.ran = len(plan.to_run) - len(outcome.errors)
+        table = collect.collect_sweep(folder, maps=maps)
+        outcome.table_path = collect.write_table(table, collect.table_path(folder, spec.name),
+                                                 overwrite=True)
+    status = table["run_status"].values.ravel()
+    outcome.counts = {s: int((status == s).sum()) for s in ("complete", "steady", "failed",
+                                                            "missing")}
+    reasons = table["run_status_reason"].values.ravel()
+    files = table["run_file"].values.ravel()
+    outcome.failures = [(str(f), str(r)) for f, r, s in zip(files, reasons, status)
+                        if s == FAILED]
+    return outcome
+
+
+@contextlib.contextmanager
+def _local_executor(workers: int):
+    """Spawned worker processes with one thread each (set in the environment they inherit)."""
+    saved = {name: os.environ.get(name) for name in THREAD_VARIABLES}
+    for name in THREAD_VARIABLES:
+        os.environ[name] = "1"
+    executor = cf.ProcessPoolExecutor(max_workers=workers,
+                                      mp_context=multiprocessing.get_context("spawn"),
+                                      initializer=ignore_interrupts)
+    try:
+        yield executor, workers
+    except BaseException:
+        executor.shutdown(wait=False, cancel_futures=True)
+        _stop_workers(executor)
+        raise
+    else:
+        executor.shutdown(wait=True)
+    finally:
+        for name, value in saved.items():
+            if value is None:
+                os.environ.pop(name, None)
+            else:
+                os.environ[name] = value
+
+
+def _stop_workers(executor: cf.ProcessPoolExecutor) -> None:
+    """Stop the worker processes now (an interrupted sweep does not wait for its points)."""
+    kill = getattr(executor, "kill_workers", None)  # Python >= 3.14
+    if kill is not None:
+        kill()
+        return
+    for process in list(getattr(executor, "_processes", {}).values()):
+        with contextlib.suppress(Exception):
+            process.kill()
+
+
+@contextlib.contextmanager
+def _dask_executor(address: str):
+    """A concurrent.futures executor on the dask.distributed cluster at ``address``."""
+    try:
+        import distributed
+    except ImportError:
+        raise SweepError("--scheduler needs dask.distributed, an optional extra: "
+                         "pip install 'torrid[dist]'") from None
+    try:
+        client = distributed.Client(address, timeout="20s", set_as_default=False)
+    except (OSError, TimeoutError, ValueError) as err:
+        raise SweepError(f"--scheduler {address}: cannot reach the dask scheduler "
+                         f"({type(err).__name__}: {str(err).splitlines()[0] if str(err) else ''})"
+                         ) from None
+    try:
+        threads = sum(w.get("nthreads", 1) for w in client.scheduler_info()["workers"].values())
+        if threads == 0:
+            raise SweepError(f"--scheduler {address}: the cluster has no workers (start them "
+                             f"with: dask worker {address} --nthreads 1)")
+        executor = client.get_executor(pure=False)
+        try:
+            yield executor, threads
+        except BaseException:
+            for future in list(getattr(executor, "_futures", ())):
+                with contextlib.suppress(Exception):
+                    future.cancel()
+            raise
+    finally:
+        client.close()
+
+
+def _execute(plan: Plan, folder: Path, workers: int | None, scheduler: str | None,
+             progress: bool) -> list[str]:
+    """Run ``plan.to_run``; return the unexpected errors (one line each)."""
+    done = sum(r.status in FINISHED for r in plan.results.values())
+    failed = sum(r.status == FAILED for r in plan.results.values())
+    errors: list[str] = []
+    if scheduler is None:
+        workers = min(workers or default_workers(), len(plan.to_run))
+        context = _local_executor(workers)
+    else:
+        context = _dask_executor(scheduler)
+    bar = tqdm(total=len(plan.points), initial=len(plan.results), unit="point",
+               disable=not progress, smoothing=0, dynamic_ncols=True, desc="sweep",
+               bar_format="{desc}: {percentage:3.0f}%|{bar}| {n}/{total} points "
+                          "[{elapsed}<{remaining}] {postfix}")
+    with context as (executor, slots), bar:
+        pending = {executor.submit(run_point, canonical_json(p.config.to_dict()),
+                                   str(folder / p.file_name)): p for p in plan.to_run}
+        while pending:
+            bar.set_postfix_str(f"{done} done, {failed} failed, "
+                                f"{min(slots, len(pending))} running", refresh=True)
+            finished, _ = cf.wait(pending, timeout=1.0, return_when=cf.FIRST_COMPLETED)
+            for future in finished:
+                point = pending.pop(future)
+                try:
+                    result = future.result()
+                except cf.process.BrokenProcessPool:
+                    raise SweepError(f"{folder}: a worker process died (out of memory? killed?) "
+                                     "while running points; rerun the sweep to resume") from None
+                except Exception as err:  # noqa: BLE001 - reported, retried on the next run
+                    errors.append(f"{point.file_name}: {type(err).__name__}: "
+                                  f"{str(err).splitlines()[0] if str(err) else ''}")
+                    bar.update(1)
+                    continue
+                _check_visible(result, scheduler)
+                if result["status"] == FAILED:
+                    failed += 1
+                else:
+                    done += 1
+                bar.update(1)
+        bar.set_postfix_str(f"{done} done, {failed} failed, 0 running", refresh=True)
+    return errors
+
+
+def _check_visible(result: dict, scheduler: str | None) -> None:
+    """A cluster worker's file must be visible here, else the folder is not shared."""
+    if scheduler is not None and not Path(result["path"]).is_file():
+        raise SweepError(f"{result['path']}: written by a worker on {result['host']} but not "
+                         "visible here: the sweep folder must be on a file system that every "
+                         "dask worker and this machine share")
+
+
+def wall_clock() -> float:
+    """Seconds on a monotonic clock (for the benchmark and the summary)."""
+    return time.perf_counter()
