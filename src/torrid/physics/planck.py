@@ -138,7 +138,7 @@ def tophat_band(low_m: float, high_m: float, *, photon: bool = True, order: int 
     """A top-hat band (response 1 between ``low_m`` and ``high_m``, m; 0 < low < high)."""
     if not (0 < low_m < high_m and np.isfinite(high_m)):
         raise ValueError(f"band {low_m!r}-{high_m!r} m: need 0 < low < high")
-    lam, w = _panel_nodes(np.linspace(low_m, high_m, panels + 1), order)
+    lam, w = _panel_nodes(np.geomspace(low_m, high_m, panels + 1), order)
     return Band(lam, w * _photon_factor(lam, photon), photon,
                 f"top-hat {low_m * 1e6:g}-{high_m * 1e6:g} micron")
 

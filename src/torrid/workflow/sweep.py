@@ -20,10 +20,10 @@ is retried by the next run. One sweep at a time may use a folder (a lock file).
 from __future__ import annotations
 
 import concurrent.futures as cf
+from concurrent.futures.process import BrokenProcessPool
 import contextlib
 import multiprocessing
 import os
-import time
 from dataclasses import dataclass, field
 from pathlib import Path
 
@@ -245,9 +245,7 @@ def _dask_executor(address: str):
         try:
             yield executor, threads
         except BaseException:
-            for future in list(getattr(executor, "_futures", ())):
-                with contextlib.suppress(Exception):
-                    future.cancel()
+            executor.shutdown(wait=False)  # cancels what has not run
             raise
     finally:
         client.close()
@@ -279,7 +277,7 @@ def _execute(plan: Plan, folder: Path, workers: int | None, scheduler: str | Non
                 point = pending.pop(future)
                 try:
                     result = future.result()
-                except cf.process.BrokenProcessPool:
+                except BrokenProcessPool:
                     raise SweepError(f"{folder}: a worker process died (out of memory? killed?) "
                                      "while running points; rerun the sweep to resume") from None
                 except Exception as err:  # noqa: BLE001 - reported, retried on the next run
@@ -303,8 +301,3 @@ def _check_visible(result: dict, scheduler: str | None) -> None:
         raise SweepError(f"{result['path']}: written by a worker on {result['host']} but not "
                          "visible here: the sweep folder must be on a file system that every "
                          "dask worker and this machine share")
-
-
-def wall_clock() -> float:
-    """Seconds on a monotonic clock (for the benchmark and the summary)."""
-    return time.perf_counter()
