@@ -12,7 +12,8 @@ photons s^-1 m^-2 sr^-1). Only ratios of band radiances (planet over star) and t
 enter the phase curves, so the response needs no normalisation.
 
 Quadrature: composite Gauss-Legendre, ``order`` nodes on each panel; the panels subdivide the
-band (top-hat) or each interval of the tabulated response, so the piecewise-linear response
+band geometrically (top-hat; equal steps in log wavelength suit the Planck function over wide
+bands) or each interval of the tabulated response linearly, so the piecewise-linear response
 times the smooth Planck function is integrated to near round-off (the convergence with the
 number of nodes is checked in the tests).
 """

@@ -115,6 +115,7 @@ def integrate(model: Model, progress: bool = True, label: str = "",
             restart.clear()
             restart.write_output(0, first)
     criterion = steady_criterion(model)
+    stopping = criterion is not None and config.run.stop_at_steady_state
     status, reason = "complete", ""
     bar = tqdm(total=round(n_outputs * config.run.output_interval_days, 6), unit="day",
                initial=round(run.times_days[-1], 6),
@@ -159,8 +160,7 @@ def integrate(model: Model, progress: bool = True, label: str = "",
             restart.write_output(len(run.times_days) - 1, taken)
             if run.outputs_done % restart_every == 0:
                 _save_restart(model, restart, run)
-        if problem is None and criterion is not None and is_steady(run.times_days, run.series,
-                                                                    criterion):
+        if problem is None and stopping and is_steady(run.times_days, run.series, criterion):
             status, reason = "steady", f"steady state reached at day {run.times_days[-1]:g}"
             break
     if problem is not None:
@@ -182,7 +182,8 @@ def integrate(model: Model, progress: bool = True, label: str = "",
                  or "none")
     if model.forcing is not None:
         steady_day = run.times_days[-1] if status == "steady" else None
-        attrs.update(planet_attrs(model, run.series, criterion, steady_day))
+        attrs.update(planet_attrs(model, run.times_days, run.series, criterion,
+                                  config.run.stop_at_steady_state, steady_day))
     series = {k: v for k, v in run.series.items() if k != "max_speed"}
     ds = build_dataset(run.times_days, lat, lon, series, static, attrs)
     if problem is not None:
@@ -191,10 +192,10 @@ def integrate(model: Model, progress: bool = True, label: str = "",
 
 
 def steady_criterion(model: Model) -> SteadyCriterion | None:
-    """The steady-state test of a planet run, or None if the run should not stop early."""
-    run = model.config.run
-    if model.forcing is None or not run.stop_at_steady_state:
+    """The steady-state test (and averaging window) of a planet run; None for a case."""
+    if model.forcing is None:
         return None
+    run = model.config.run
     rotation_days = (2 * math.pi / abs(model.rotation_rate_s) / SECONDS_PER_DAY
                      if model.rotation_rate_s else math.inf)
     cycle = None if model.orbit.is_steady else model.orbit.orbital_period_s / SECONDS_PER_DAY

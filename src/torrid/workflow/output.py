@@ -12,7 +12,7 @@ from torrid.physics import invariants
 from torrid.physics.diagnostics import DIAGNOSTIC_VARIABLES, planet_diagnostics
 from torrid.physics.fields import grid_state
 from torrid.workflow.setup import Model
-from torrid.workflow.steady import SteadyCriterion
+from torrid.workflow.steady import SteadyCriterion, window_means
 
 
 @dataclass(frozen=True)
@@ -90,13 +90,34 @@ def snapshot(model: Model, state: np.ndarray, time_s: float = 0.0) -> dict[str, 
     return out
 
 
-def planet_attrs(model: Model, series: dict, criterion: SteadyCriterion | None,
-                  steady_day: float | None) -> dict:
+def final_value(times_days, values, window_days: float, angle: bool = False) -> float:
+    """Time mean of a diagnostic over the trailing window (its last value if the run is
+    shorter than the window). Angles (degrees) are unwrapped first."""
+    values = np.asarray(values, float)
+    if angle:
+        finite = np.isfinite(values)
+        if not finite.all():
+            values = np.where(finite, values, np.nan)
+        if finite.any():
+            values = np.where(finite, np.unwrap(np.where(finite, values, 0.0), period=360.0),
+                              np.nan)
+    end = times_days[-1]
+    if end - times_days[0] < window_days or not np.isfinite(values[-1]):
+        mean = values[-1]
+    else:
+        mean = window_means(times_days, values, end - window_days, end)
+    return float((mean + 180.0) % 360.0 - 180.0) if angle and np.isfinite(mean) else float(mean)
+
+
+def planet_attrs(model: Model, times_days: list, series: dict, criterion: SteadyCriterion,
+                 stopping: bool, steady_day: float | None) -> dict:
+    """Steady-state record and final diagnostics (means over the criterion's window)."""
     atm = model.config.atmosphere
+    window = criterion.window_days
     out = {
         "steady_state_reached": int(steady_day is not None),
         "steady_state_time_days": steady_day if steady_day is not None else float("nan"),
-        "steady_state_criterion": ("none (run.stop_at_steady_state = false)" if criterion is None
+        "steady_state_criterion": ("none (run.stop_at_steady_state = false)" if not stopping
                                    else f"window {criterion.window_days:g} days, tolerance "
                                         f"{criterion.tolerance:g}"
                                         + ("" if model.orbit.is_steady
@@ -104,8 +125,12 @@ def planet_attrs(model: Model, series: dict, criterion: SteadyCriterion | None,
         "nightside_thickness_m": atm.mean_geopotential_m2_s2 / model.gravity_m_s2,
         "forcing_contrast": atm.forcing_contrast,
     }
+    out["final_values"] = (f"time means over the last {window:g} days (the steady-state "
+                           "window; whole orbits on eccentric orbits), or the last output if "
+                           "the run is shorter")
     for name in DIAGNOSTIC_VARIABLES:
-        out[f"final_{name}"] = float(series[name][-1])
+        out[f"final_{name}"] = final_value(times_days, series[name], window,
+                                           angle=name.startswith("hotspot"))
     return out
 
 

@@ -265,7 +265,7 @@ def _execute(plan: Plan, folder: Path, workers: int | None, scheduler: str | Non
     bar = tqdm(total=len(plan.points), initial=len(plan.results), unit="point",
                disable=not progress, smoothing=0, dynamic_ncols=True, desc="sweep",
                bar_format="{desc}: {percentage:3.0f}%|{bar}| {n}/{total} points "
-                          "[{elapsed}<{remaining}] {postfix}")
+                          "[{elapsed}<{remaining}{postfix}]")
     with context as (executor, slots), bar:
         pending = {executor.submit(run_point, canonical_json(p.config.to_dict()),
                                    str(folder / p.file_name)): p for p in plan.to_run}

@@ -12,12 +12,15 @@ import argparse
 import sys
 
 from torrid import __version__
+from torrid.interface.cli import collect as collect_cmd
 from torrid.interface.cli import phase as phase_cmd
 from torrid.interface.cli import plot as plot_cmd
 from torrid.interface.cli import run as run_cmd
+from torrid.interface.cli import sweep as sweep_cmd
 from torrid.workflow.driver import RunFailedError
 
-SUBCOMMANDS = {"run": run_cmd, "plot": plot_cmd, "phase": phase_cmd}
+SUBCOMMANDS = {"run": run_cmd, "plot": plot_cmd, "phase": phase_cmd, "sweep": sweep_cmd,
+               "collect": collect_cmd}
 USER_ERRORS = (ValueError, FileExistsError, FileNotFoundError, KeyError)
 
 

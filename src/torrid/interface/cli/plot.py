@@ -9,13 +9,16 @@ from pathlib import Path
 
 def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser(
-        "plot", help="draw a run file (PNG maps and spin-up time series)",
+        "plot", help="draw a run file (PNG maps and spin-up time series) or a sweep table",
         description="Draw a run file. For a planet run: the thickness map centred on the "
                     "substellar point with wind arrows, the substellar point and the hotspot "
                     "marked and the zonal-mean zonal wind beside it (RUN.png), and the spin-up "
                     "diagnostics against time (RUN-spinup.png). With --variable, or for a "
-                    "standard case: a lon-lat map of one variable (RUN-<variable>.png).")
-    p.add_argument("run_file", type=Path, metavar="RUN.nc", help="run file written by torrid run")
+                    "standard case: a lon-lat map of one variable (RUN-<variable>.png). For a "
+                    "sweep table (torrid sweep, torrid collect): hotspot offset, day-night "
+                    "contrast and jet speed over the two main swept axes (TABLE.png) and, if "
+                    "it has maps, the thickness map of every point (TABLE-maps.png).")
+    p.add_argument("run_file", type=Path, metavar="RUN.nc", help="run file written by torrid run, or a sweep table")
     p.add_argument("--variable", default=None,
                    help="draw this variable as a plain map: h, u, v, vorticity, divergence "
                         "(default for standard cases: h)")
@@ -29,8 +32,16 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
 
 def handle(args: argparse.Namespace) -> int:
     from torrid.interface import plots
+    from torrid.interface.sweep_plots import is_sweep_table, plot_sweep_file
     from torrid.io.runfile import read_run
 
+    if is_sweep_table(args.run_file):  # a table of torrid sweep / torrid collect
+        if args.variable or args.time is not None:
+            raise ValueError(f"{args.run_file} is a sweep table: --variable and --time apply "
+                             "to run files only")
+        images = plot_sweep_file(args.run_file, args.output, overwrite=args.overwrite)
+        print(f"wrote {' and '.join(map(str, images))}", file=sys.stdout)
+        return 0
     ds = read_run(args.run_file)
     stem = args.run_file.with_suffix("")
     is_planet = "hotspot_offset" in ds

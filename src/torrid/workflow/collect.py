@@ -1,0 +1,204 @@
+"""The sweep table: one xarray Dataset over the swept parameters, from a sweep folder.
+
+Dimensions are the sweep's dimensions (named after the key after the dot, e.g.
+``radiative_timescale_days``; the coordinate holds the values, with ``units``, the full
+``config_key`` and the ``spacing``: log, linear or values); the other axes of a zip group are
+non-dimension coordinates along their group's dimension. Variables, from each point's file:
+
+* every ``final_<name>`` diagnostic as ``<name>`` (units and long_name from
+  :data:`torrid.io.variables.VARIABLES`), NaN for failed and missing points (a failed run file
+  keeps its last good state, but that is not a result);
+* ``steady_state_reached`` (1, 0; NaN when there is no run), ``steady_state_time_days``;
+* ``run_status`` (complete, steady, failed, missing), ``run_status_reason`` and ``run_file``
+  (the point's file name in the folder, also for points still missing);
+* with ``maps``: the final ``h``, ``u``, ``v`` (dimensions ..., lat, lon).
+
+The table is plain netCDF: ``xarray.open_dataset`` is all a reader needs.
+"""
+
+from __future__ import annotations
+
+import json
+import os
+from pathlib import Path
+
+import numpy as np
+import xarray as xr
+
+import torrid
+from torrid.io.pointfile import FINISHED, MISSING, read_point
+from torrid.io.runfile import write_atomic
+from torrid.io.sweepmanifest import read_manifest
+from torrid.io.variables import COORDINATES, VARIABLES
+
+MAP_VARIABLES = ("h", "u", "v")
+#: Units of a configuration key from its name's suffix (longest first).
+_UNIT_SUFFIXES = (("_m2_s2", "m2 s-2"), ("_m_s2", "m s-2"), ("_days", "days"), ("_deg", "degree"),
+                  ("_rad", "rad"), ("_s", "s"), ("_m", "m"))
+
+
+def table_path(folder: str | os.PathLike, name: str) -> Path:
+    """Where a sweep's table goes: ``<folder>/<name>-table.nc``."""
+    return Path(folder) / f"{name}-table.nc"
+
+
+def key_units(key: str) -> str:
+    """CF units of a configuration key, read from its name (``1`` if it has none)."""
+    for suffix, units in _UNIT_SUFFIXES:
+        if key.endswith(suffix):
+            return units
+    return "1"
+
+
+def _coordinate(axis: dict, dim: str) -> xr.Variable:
+    values = axis["values"]
+    attrs = {"long_name": f"swept configuration key {axis['key']}", "config_key": axis["key"],
+             "spacing": axis["spacing"]}
+    if all(isinstance(v, str) for v in values):
+        data = np.array(values, dtype=object)
+    else:
+        data = np.array(values)
+        if data.dtype != bool:
+            attrs["units"] = key_units(axis["key"])
+    return xr.Variable((dim,), data, attrs)
+
+
+def _diagnostic_attrs(name: str) -> dict:
+    var = VARIABLES.get(name)
+    if var is None:
+        return {"long_name": f"final {name}"}
+    return {"units": var.units, "long_name": f"{var.long_name} (final value)"}
+
+
+def _is_number(value) -> bool:
+    return isinstance(value, (int, float, np.integer, np.floating)) and not isinstance(value, bool)
+
+
+def _final_maps(path: Path) -> dict | None:
+    with xr.open_dataset(path, engine="netcdf4") as ds:
+        if not all(name in ds for name in MAP_VARIABLES):
+            return None
+        last = ds[list(MAP_VARIABLES)].isel(time=-1).load()
+    return {"lat": last["lat"].values, "lon": last["lon"].values,
+            **{name: last[name].values for name in MAP_VARIABLES}}
+
+
+def collect_sweep(folder: str | os.PathLike, maps: bool = False) -> xr.Dataset:
+    """Build the sweep table of ``folder`` (see the module docstring).
+
+    Parameters
+    ----------
+    folder : path
+        A sweep folder (with its ``sweep.json``).
+    maps : bool
+        Add the final maps h, u, v of every finished point.
+
+    Raises
+    ------
+    SweepFolderError
+        If ``folder`` is not a sweep folder.
+    ValueError
+        With ``maps``, if the points are not all on one grid (truncation swept).
+    """
+    folder = Path(folder)
+    manifest = read_manifest(folder)
+    dims = [d["name"] for d in manifest["dimensions"]]
+    shape = tuple(len(d["axes"][0]["values"]) for d in manifest["dimensions"])
+    results = {}
+    for point in manifest["points"]:
+        results[tuple(point["index"])] = (point, read_point(folder / point["file"], point["id"]))
+    finished = [r for _, r in results.values() if r.status in FINISHED]
+    finals = sorted({k[len("final_"):] for r in finished for k, v in r.attrs.items()
+                     if k.startswith("final_") and _is_number(v)})
+    described = next((str(r.attrs["final_values"]) for r in finished if "final_values" in r.attrs),
+                     "the last output of each run")
+    numbers = {name: np.full(shape, np.nan) for name in
+               [*finals, "steady_state_reached", "steady_state_time_days"]}
+    strings = {name: np.full(shape, "", dtype=object) for name in
+               ("run_status", "run_status_reason", "run_file")}
+    fields, grid = {}, None
+    for index, (point, result) in results.items():
+        strings["run_status"][index] = result.status
+        strings["run_status_reason"][index] = result.reason
+        strings["run_file"][index] = point["file"]
+        if result.status == MISSING:
+            continue
+        if "steady_state_reached" in result.attrs:
+            numbers["steady_state_reached"][index] = float(result.attrs["steady_state_reached"])
+        if result.status not in FINISHED:
+            continue
+        numbers["steady_state_time_days"][index] = float(
+            result.attrs.get("steady_state_time_days", np.nan))
+        for name in finals:
+            numbers[name][index] = float(result.attrs.get(f"final_{name}", np.nan))
+        if maps:
+            snapshot = _final_maps(folder / point["file"])
+            if snapshot is None:
+                continue
+            if grid is None:
+                grid = (snapshot["lat"], snapshot["lon"])
+                fields = {n: np.full(shape + snapshot["h"].shape, np.nan) for n in MAP_VARIABLES}
+            elif snapshot["h"].shape != fields["h"].shape[len(shape):]:
+                raise ValueError(f"{folder}: --maps needs every point on one grid, but "
+                                 f"{point['file']} has {snapshot['h'].shape[0]} latitudes, "
+                                 f"not {fields['h'].shape[len(shape)]} (truncation swept?)")
+            for name in MAP_VARIABLES:
+                fields[name][index] = snapshot[name]
+    data = {}
+    for name in finals:
+        data[name] = xr.Variable(dims, numbers[name], _diagnostic_attrs(name))
+    data["steady_state_reached"] = xr.Variable(dims, numbers["steady_state_reached"], {
+        "units": "1", "long_name": "1 if the run stopped at its steady state, 0 if it ran "
+                                   "its days (NaN: no run)"})
+    data["steady_state_time_days"] = xr.Variable(dims, numbers["steady_state_time_days"], {
+        "units": "days", "long_name": "simulated day at which the steady state was reached"})
+    data["run_status"] = xr.Variable(dims, strings["run_status"], {
+        "long_name": "status of the point: complete, steady, failed or missing"})
+    data["run_status_reason"] = xr.Variable(dims, strings["run_status_reason"], {
+        "long_name": "why the point has its status"})
+    data["run_file"] = xr.Variable(dims, strings["run_file"], {
+        "long_name": "the point's run file in the sweep folder (named by its configuration)"})
+    coords = {}
+    for dim in manifest["dimensions"]:
+        for axis in dim["axes"]:
+            coords[axis["name"]] = _coordinate(axis, dim["name"])
+    if grid is not None:
+        coords["lat"] = xr.Variable(("lat",), grid[0], COORDINATES["lat"].attrs())
+        coords["lon"] = xr.Variable(("lon",), grid[1], COORDINATES["lon"].attrs())
+        for name in MAP_VARIABLES:
+            var = VARIABLES[name]
+            data[name] = xr.Variable((*dims, "lat", "lon"), fields[name],
+                                     {**var.attrs(), "long_name": f"{var.long_name}, at the "
+                                                                  "last output"})
+    status = strings["run_status"]
+    attrs = {
+        "Conventions": "CF-1.10",
+        "title": f"torrid sweep table: {manifest['torrid_sweep']}",
+        "torrid_sweep": manifest["torrid_sweep"],
+        "source": f"torrid {torrid.__version__}",
+        "torrid_version": torrid.__version__,
+        "date_created": _now(),
+        "sweep_dimensions_json": json.dumps(manifest["dimensions"], allow_nan=True),
+        "sweep_base_configuration_json": json.dumps(manifest["base_configuration"],
+                                                    sort_keys=True, allow_nan=True),
+        "points_total": int(status.size),
+        **{f"points_{s}": int((status == s).sum())
+           for s in ("complete", "steady", "failed", "missing")},
+        "final_values": described,
+        "comment": "one point per combination of the swept values; the diagnostics are each "
+                   "run's final_<name> attributes (final_values says what they are; NaN for "
+                   "failed and missing points), the maps its last output; run_file names the "
+                   "point's run file in the sweep folder",
+    }
+    return xr.Dataset(data, coords=coords, attrs=attrs)
+
+
+def _now() -> str:
+    import datetime as dt
+
+    return dt.datetime.now(dt.timezone.utc).replace(microsecond=0).isoformat()
+
+
+def write_table(table: xr.Dataset, path: str | os.PathLike, overwrite: bool = False) -> Path:
+    """Write the sweep table as netCDF4 (atomically; an existing file only with ``overwrite``)."""
+    return write_atomic(table, path, overwrite=overwrite)
