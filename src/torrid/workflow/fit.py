@@ -1,0 +1,178 @@
+"""Fit a measured phase curve with a sweep: chi-square over the grid, confidence regions, the
+best point, an interpolated best estimate, and the simpler offset-and-amplitude comparison.
+
+chi^2(p) = sum_k ((F_obs,k - F_model(p; phase_k)) / sigma_k)^2 with the model curve of each grid
+point p (its phase curve, linearly interpolated to the observed phases, periodic in phase). The
+confidence regions of two jointly estimated parameters are chi^2 - chi^2_min <= 2.30 (68.27 %)
+and <= 6.18 (95.45 %) (Avni 1976; the values are the chi-square quantiles with 2 degrees of
+freedom, from memory of the usual tables and checked against scipy.stats.chi2 in the tests).
+The best estimate refines the best grid point with a quadratic fitted to chi^2 over its 3 x 3
+neighbourhood in the two main swept axes (in log10 of the values where they are log-spaced).
+"""
+
+from __future__ import annotations
+
+import math
+
+import numpy as np
+import xarray as xr
+
+from torrid.io.observed import ObservedCurve
+
+#: Delta chi-square of the 68.27 % and 95.45 % joint regions of two parameters (Avni 1976).
+DELTA_CHI2 = {"68.27%": 2.30, "95.45%": 6.18}
+
+
+class FitError(ValueError):
+    """A fit that cannot be made (one line)."""
+
+
+def model_at_phases(curves: xr.DataArray, phases: np.ndarray) -> xr.DataArray:
+    """Periodic linear interpolation of curves (..., phase) to the observed phases."""
+    grid = curves["phase"].values
+    order = np.argsort(grid)
+    grid = grid[order]
+    values = curves.isel(phase=order).values
+    ext_grid = np.concatenate([grid[-1:] - 1.0, grid, grid[:1] + 1.0])
+    ext = np.concatenate([values[..., -1:], values, values[..., :1]], axis=-1)
+    flat = ext.reshape(-1, ext.shape[-1])
+    out = np.stack([np.interp(phases, ext_grid, row) for row in flat])
+    dims = [d for d in curves.dims if d != "phase"]
+    shape = [curves.sizes[d] for d in dims]
+    return xr.DataArray(out.reshape(*shape, phases.size), dims=(*dims, "observation"),
+                        coords={d: curves[d] for d in dims if d in curves.coords})
+
+
+def chi_square(curves: xr.DataArray, observed: ObservedCurve) -> xr.DataArray:
+    """chi^2 of every grid point's curve against the measured one."""
+    model = model_at_phases(curves, observed.phase)
+    resid = (observed.flux_ratio_ppm - model) / observed.error_ppm
+    return (resid**2).sum("observation")
+
+
+def _is_log_spaced(values: np.ndarray) -> bool:
+    values = np.asarray(values, float)
+    if values.size < 3 or np.any(values <= 0) or not np.all(np.isfinite(values)):
+        return False
+    steps = np.diff(np.log10(values))
+    return bool(np.allclose(steps, steps[0], rtol=1e-6)) and not np.allclose(
+        np.diff(values), np.diff(values)[0], rtol=1e-6)
+
+
+def axis_transform(values) -> tuple[np.ndarray, bool]:
+    """Coordinates in which to interpolate: log10 for log-spaced positive axes."""
+    values = np.asarray(values, float)
+    log = _is_log_spaced(values)
+    return (np.log10(values) if log else values), log
+
+
+def refine_minimum(chi2: np.ndarray, x: np.ndarray, y: np.ndarray) -> tuple[float, float, float]:
+    """Minimum of a quadratic fitted to chi2 on the 3 x 3 neighbourhood of its grid minimum.
+
+    Returns (x*, y*, chi2*) in the given coordinates; the grid minimum if the quadratic is not
+    convex or its minimum leaves the neighbourhood.
+    """
+    i, j = np.unravel_index(np.nanargmin(chi2), chi2.shape)
+    best = (float(x[i]), float(y[j]), float(chi2[i, j]))
+    ii = range(max(i - 1, 0), min(i + 2, len(x)))
+    jj = range(max(j - 1, 0), min(j + 2, len(y)))
+    pts = [(x[a], y[b], chi2[a, b]) for a in ii for b in jj if np.isfinite(chi2[a, b])]
+    if len(pts) < 6 or len(ii) < 3 or len(jj) < 3:
+        return best
+    px, py, pz = (np.array(c, float) for c in zip(*pts))
+    design = np.column_stack([np.ones_like(px), px, py, px * px, px * py, py * py])
+    c0, cx, cy, cxx, cxy, cyy = np.linalg.lstsq(design, pz, rcond=None)[0]
+    hessian = np.array([[2 * cxx, cxy], [cxy, 2 * cyy]])
+    if np.any(np.linalg.eigvalsh(hessian) <= 0):
+        return best
+    xs, ys = np.linalg.solve(hessian, [-cx, -cy])
+    if not (min(px) <= xs <= max(px) and min(py) <= ys <= max(py)):
+        return best
+    zs = c0 + cx * xs + cy * ys + cxx * xs * xs + cxy * xs * ys + cyy * ys * ys
+    return float(xs), float(ys), float(zs)
+
+
+def fit_sweep(curves: xr.Dataset, observed: ObservedCurve, *, offset_deg: float | None = None,
+              offset_error_deg: float | None = None, amplitude_ppm: float | None = None,
+              amplitude_error_ppm: float | None = None) -> xr.Dataset:
+    """Fit ``observed`` with the phase curves of a sweep table.
+
+    Parameters
+    ----------
+    curves : xarray.Dataset
+        Phase curves of a sweep table (``table.torrid.phase_curve(...)``): ``flux_ratio``
+        over the swept dims and ``phase``, with ``offset_of_maximum`` and ``amplitude``.
+    observed : ObservedCurve
+        The measured curve.
+    offset_deg, offset_error_deg, amplitude_ppm, amplitude_error_ppm : float, optional
+        A measured peak offset (degrees, east positive) and peak-to-peak amplitude (ppm) with
+        1-sigma errors, for the simpler comparison ``consistent`` (grid points whose curve
+        reproduces both within the errors).
+
+    Returns
+    -------
+    xarray.Dataset
+        ``chi_square`` and ``delta_chi_square`` over the swept dims, the masks ``within_68``
+        and ``within_95``, ``best_<dim>`` (grid point), ``estimate_<dim>`` (interpolated),
+        ``best_flux_ratio`` (the best point's curve), the observation, and ``consistent``.
+    """
+    flux = curves["flux_ratio"]
+    dims = [d for d in flux.dims if d != "phase"]
+    if not dims:
+        raise FitError("the phase curves have no swept dimensions: fit a sweep table")
+    chi2 = chi_square(flux, observed)
+    if not np.isfinite(chi2.values).any():
+        raise FitError("no grid point has a finite phase curve (all failed or missing?)")
+    chi2 = chi2.where(np.isfinite(chi2))
+    delta = chi2 - chi2.min()
+    best_index = dict(zip(dims, np.unravel_index(int(np.nanargmin(chi2.values)), chi2.shape)))
+    out = xr.Dataset({
+        "chi_square": chi2.assign_attrs(units="1", long_name="chi-square against the observation"),
+        "delta_chi_square": delta.assign_attrs(units="1", long_name="chi-square minus its minimum"),
+        "within_68": (delta <= DELTA_CHI2["68.27%"]).assign_attrs(
+            long_name="inside the 68.27 % joint region (delta chi-square <= 2.30)"),
+        "within_95": (delta <= DELTA_CHI2["95.45%"]).assign_attrs(
+            long_name="inside the 95.45 % joint region (delta chi-square <= 6.18)"),
+        "best_flux_ratio": flux.isel(best_index).drop_vars(dims, errors="ignore").assign_attrs(
+            units="ppm", long_name="phase curve of the best grid point"),
+        "observed_flux_ratio": ("observation", observed.flux_ratio_ppm, {"units": "ppm"}),
+        "observed_error": ("observation", observed.error_ppm, {"units": "ppm"}),
+    }, coords={"observed_phase": ("observation", observed.phase)})
+    for d in dims:
+        out.attrs[f"best_{d}"] = float(flux[d].values[best_index[d]])
+    out.attrs["chi_square_min"] = float(chi2.min())
+    out.attrs["degrees_of_freedom"] = int(observed.phase.size - min(2, len(dims)))
+    if len(dims) >= 2:
+        main = dims[:2]
+        rest = {d: best_index[d] for d in dims[2:]}
+        plane = chi2.isel(rest).transpose(*main).values
+        (xt, xlog), (yt, ylog) = (axis_transform(flux[d].values) for d in main)
+        xs, ys, zs = refine_minimum(plane, xt, yt)
+        for d, v, log in ((main[0], xs, xlog), (main[1], ys, ylog)):
+            out.attrs[f"estimate_{d}"] = 10**v if log else v
+        out.attrs["estimate_chi_square"] = zs
+    if offset_deg is not None or amplitude_ppm is not None:
+        ok = xr.ones_like(chi2, dtype=bool)
+        if offset_deg is not None:
+            err = offset_error_deg if offset_error_deg is not None else math.inf
+            diff = (curves["offset_of_maximum"] - offset_deg + 180) % 360 - 180
+            ok = ok & (abs(diff) <= err)
+        if amplitude_ppm is not None:
+            err = amplitude_error_ppm if amplitude_error_ppm is not None else math.inf
+            ok = ok & (abs(curves["amplitude"] - amplitude_ppm) <= err)
+        out["consistent"] = ok.assign_attrs(
+            long_name="reproduces the measured offset and amplitude within their errors")
+    out.attrs["observation"] = observed.source
+    return out
+
+
+def synthetic_observation(curve: xr.DataArray, n_points: int, noise_ppm: float,
+                          seed: int = 0, source: str = "invented observation") -> ObservedCurve:
+    """An invented measurement: ``curve`` (over ``phase``) sampled at ``n_points`` phases
+    evenly spread over the orbit (away from transit), plus Gaussian noise of ``noise_ppm``."""
+    rng = np.random.default_rng(seed)
+    phases = (np.arange(n_points) + 0.5) / n_points
+    values = model_at_phases(curve, phases).values.reshape(-1)
+    noisy = values + rng.normal(0.0, noise_ppm, size=phases.size)
+    return ObservedCurve(phase=phases, flux_ratio_ppm=noisy,
+                         error_ppm=np.full(phases.size, float(noise_ppm)), source=source)

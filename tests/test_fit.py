@@ -1,0 +1,91 @@
+"""Fitting a measured phase curve with a sweep: chi-square, confidence regions, best point."""
+
+import numpy as np
+import pytest
+import xarray as xr
+from scipy import stats
+
+from torrid.io.observed import ObservedDataError, read_observed_csv, write_observed_csv
+from torrid.workflow.fit import (DELTA_CHI2, axis_transform, fit_sweep, refine_minimum,
+                                 synthetic_observation)
+
+
+def test_delta_chi_square_levels_match_scipy():
+    # Avni (1976): joint regions of two parameters; quoted from memory, checked here against
+    # the chi-square quantiles with 2 degrees of freedom (scipy.stats.chi2).
+    assert DELTA_CHI2["68.27%"] == pytest.approx(stats.chi2.ppf(0.6827, 2), abs=0.005)
+    assert DELTA_CHI2["95.45%"] == pytest.approx(stats.chi2.ppf(0.9545, 2), abs=0.005)
+
+
+def _family():
+    """Analytic phase curves over a log-spaced 5 x 4 grid: amplitude and offset vary smoothly."""
+    tau_rad = np.logspace(-2, 2, 5)
+    tau_drag = np.logspace(-1, 2, 4)
+    phase = np.arange(360) / 360
+    r, d = np.meshgrid(np.log10(tau_rad), np.log10(tau_drag), indexing="ij")
+    amplitude = 400 / (1 + np.exp(r)) + 40 * d  # ppm
+    offset = 0.02 * (r + 2) + 0.01 * d  # phase shift of the maximum before eclipse
+    flux = 500 + amplitude[..., None] * np.cos(2 * np.pi * (phase - 0.5 + offset[..., None]))
+    ds = xr.Dataset({"flux_ratio": (("radiative_timescale_days", "drag_timescale_days", "phase"),
+                                    flux),
+                     "offset_of_maximum": (("radiative_timescale_days", "drag_timescale_days"),
+                                           offset * 360),
+                     "amplitude": (("radiative_timescale_days", "drag_timescale_days"),
+                                   2 * amplitude)},
+                    coords={"radiative_timescale_days": tau_rad, "drag_timescale_days": tau_drag,
+                            "phase": phase})
+    return ds
+
+
+@pytest.mark.parametrize("truth", [(1, 2), (3, 0), (2, 1)])
+def test_fit_recovers_the_generating_grid_point(truth):
+    curves = _family()
+    point = curves.flux_ratio.isel(radiative_timescale_days=truth[0],
+                                   drag_timescale_days=truth[1])
+    # noise 10 ppm on 50 points, far below the 20-100 ppm differences between neighbours
+    observed = synthetic_observation(point, 50, noise_ppm=10.0, seed=3)
+    fit = fit_sweep(curves, observed)
+    assert fit.attrs["best_radiative_timescale_days"] == curves.radiative_timescale_days[truth[0]]
+    assert fit.attrs["best_drag_timescale_days"] == curves.drag_timescale_days[truth[1]]
+    assert bool(fit.within_68.isel(radiative_timescale_days=truth[0],
+                                   drag_timescale_days=truth[1]))
+    assert fit.within_95.sum() >= fit.within_68.sum() >= 1
+    # the chi-square minimum is about the number of points for a correct model
+    assert 20 < fit.attrs["chi_square_min"] < 90
+
+
+def test_consistency_with_measured_offset_and_amplitude():
+    curves = _family()
+    fit = fit_sweep(curves, synthetic_observation(curves.flux_ratio.isel(
+        radiative_timescale_days=2, drag_timescale_days=1), 30, 5.0),
+        offset_deg=float(curves.offset_of_maximum[2, 1]), offset_error_deg=1.0,
+        amplitude_ppm=float(curves.amplitude[2, 1]), amplitude_error_ppm=5.0)
+    assert bool(fit.consistent[2, 1]) and int(fit.consistent.sum()) < fit.consistent.size
+
+
+def test_refined_minimum_of_a_quadratic_is_exact():
+    x, y = np.linspace(-1, 1, 7), np.linspace(0, 3, 5)
+    chi2 = (x[:, None] - 0.13) ** 2 * 40 + (y[None, :] - 1.61) ** 2 * 9 + 12
+    xs, ys, zs = refine_minimum(chi2, x, y)
+    assert (xs, ys, zs) == pytest.approx((0.13, 1.61, 12.0), abs=1e-9)
+    assert axis_transform(np.logspace(-2, 2, 9))[1] and not axis_transform(np.arange(1, 5))[1]
+
+
+def test_observed_csv_round_trip_and_errors(tmp_path):
+    curves = _family()
+    observed = synthetic_observation(curves.flux_ratio.isel(radiative_timescale_days=0,
+                                                            drag_timescale_days=0), 12, 8.0)
+    path = write_observed_csv(observed, tmp_path / "obs.csv")
+    back = read_observed_csv(path)
+    np.testing.assert_allclose(back.flux_ratio_ppm, observed.flux_ratio_ppm, rtol=1e-9)
+    bad = tmp_path / "bad.csv"
+    for text, fragment in [("phase,f,e\n0.1,100,5\n0.2,abc,5\n0.3,1,1\n", "line 3"),
+                           ("0.1,100,5\n0.2,100,0\n0.3,1,1\n", "error = 0.0: must be > 0"),
+                           ("0.1,100,5\n1.2,100,1\n0.3,1,1\n", "phase = 1.2: must be in [0, 1)"),
+                           ("0.1,100\n", "2 columns: expected 3"),
+                           ("0.1,100,5\n", "need at least 3")]:
+        bad.write_text(text)
+        with pytest.raises(ObservedDataError) as err:
+            read_observed_csv(bad)
+        assert fragment in str(err.value)
+        assert "bad.csv" in str(err.value) and "\n" not in str(err.value)
