@@ -139,7 +139,8 @@ def kepler_true_anomaly(mean_anomaly, e):
     """nu of M by brentq on M = E - e sin E, then tan(nu/2) = sqrt((1+e)/(1-e)) tan(E/2)."""
     m = math.remainder(mean_anomaly, 2 * math.pi)
     ecc = brentq(lambda x: x - e * math.sin(x) - m, -math.pi - 1, math.pi + 1, xtol=1e-15)
-    return 2 * math.atan2(math.sqrt(1 + e) * math.sin(ecc / 2), math.sqrt(1 - e) * math.cos(ecc / 2))
+    return 2 * math.atan2(math.sqrt(1 + e) * math.sin(ecc / 2),
+                          math.sqrt(1 - e) * math.cos(ecc / 2))
 
 
 @pytest.mark.parametrize("e, omega_deg", [(0.3, 30.0), (0.6, 200.0)])

@@ -47,10 +47,10 @@ def plot_phase_curve(pc: xr.Dataset, path: str | os.PathLike | None = None,
                 label=f"curve maximum ({float(pc['offset_of_maximum']):+.1f} deg)")
         offset = float(pc["map_hotspot_offset"])
         if np.isfinite(offset):
-            where = (ecl - offset / 360.0) % 1.0
+            where = (ecl - pc.attrs.get("rotation_sense", 1) * offset / 360.0) % 1.0
             ax.axvline(where, color="tab:orange", lw=1.2,
                        label=f"map hotspot offset ({offset:+.1f} deg)")
-        ax.legend(loc="lower center", fontsize=8)
+        ax.legend(loc="best", fontsize=8)
     ax.set_xlim(0, 1)
     ax.set_xlabel("orbital phase (0: mid-transit)")
     ax.set_ylabel("planet-to-star flux ratio (ppm)")

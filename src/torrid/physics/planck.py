@@ -3,7 +3,8 @@
 A band is a set of quadrature nodes (wavelengths, m) and weights such that the band radiance of a
 blackbody of temperature T is
 
-    B_band(T) = sum_q weight_q B_lambda(lambda_q, T)  ~=  int R(lambda) w(lambda) B_lambda(lambda, T) dlambda
+    B_band(T) = sum_q weight_q B_lambda(lambda_q, T)
+              ~= int R(lambda) w(lambda) B_lambda(lambda, T) dlambda
 
 with B_lambda = 2 h c^2 / lambda^5 / (exp(h c / (lambda k T)) - 1) (W m^-3 sr^-1), R the
 response (a top-hat, or a tabulated curve interpolated linearly between its rows) and w = 1
@@ -42,14 +43,15 @@ def planck_wavelength(wavelength_m, temperature_k):
     Parameters
     ----------
     wavelength_m, temperature_k : array_like
-        Wavelength (m) and temperature (K), broadcast against each other; T <= 0 gives 0.
+        Wavelength (m) and temperature (K), broadcast against each other; T <= 0 gives 0,
+        NaN gives NaN.
     """
     lam = np.asarray(wavelength_m, dtype=float)
     t = np.asarray(temperature_k, dtype=float)
     with np.errstate(over="ignore", divide="ignore", invalid="ignore"):
         x = H_PLANCK * C_LIGHT / (lam * K_BOLTZMANN * t)
         out = 2 * H_PLANCK * C_LIGHT**2 / lam**5 / np.expm1(x)
-    return np.where(t > 0, out, 0.0)
+    return np.where(t > 0, out, np.where(np.isnan(t), np.nan, 0.0))
 
 
 @dataclass(frozen=True, eq=False)
@@ -145,7 +147,8 @@ def tophat_band(low_m: float, high_m: float, *, photon: bool = True, order: int 
 
 
 def tabulated_band(wavelength_m, response, *, photon: bool = True, order: int = DEFAULT_ORDER,
-                   min_panels: int = 4 * DEFAULT_MIN_PANELS, description: str = "tabulated") -> Band:
+                   min_panels: int = 4 * DEFAULT_MIN_PANELS,
+                   description: str = "tabulated") -> Band:
     """A band with a tabulated response, interpolated linearly between its rows.
 
     Parameters

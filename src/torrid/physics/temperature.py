@@ -97,16 +97,18 @@ def thickness_to_temperature(thickness_m, nightside_thickness_m, forcing_contras
     ------
     TemperatureMapError
         If the map is undefined (dH/H <= 0, T_night <= 0 or T_day < T_night) or gives T <= 0
-        anywhere (the message names the coldest value).
+        anywhere (the message names the coldest value). NaN thickness (a failed sweep point)
+        stays NaN.
     """
     h = np.asarray(thickness_m, dtype=float)
     big_h = np.asarray(nightside_thickness_m, dtype=float)
     c = np.asarray(forcing_contrast, dtype=float)
-    if not np.all(c > 0):
-        raise TemperatureMapError(f"forcing_contrast = {np.min(c)!r}: the temperature map needs "
-                                  "a day-night thickness contrast dH/H > 0")
-    if not np.all(big_h > 0):
-        raise TemperatureMapError(f"nightside_thickness_m = {np.min(big_h)!r}: must be > 0")
+    if not np.all((c > 0) | np.isnan(c)):
+        raise TemperatureMapError(f"forcing_contrast = {float(np.nanmin(c))!r}: the temperature "
+                                  "map needs a day-night thickness contrast dH/H > 0")
+    if not np.all((big_h > 0) | np.isnan(big_h)):
+        raise TemperatureMapError(
+            f"nightside_thickness_m = {float(np.nanmin(big_h))!r}: must be > 0")
     if not night_temperature_k > 0:
         raise TemperatureMapError(f"night_temperature = {night_temperature_k!r} K: must be > 0 "
                                   "(a derived one is 0 for redistribution = 0)")
@@ -114,10 +116,13 @@ def thickness_to_temperature(thickness_m, nightside_thickness_m, forcing_contras
         raise TemperatureMapError(f"day_temperature = {day_temperature_k!r} K: must be >= "
                                   f"night_temperature ({night_temperature_k!r} K)")
     t = night_temperature_k + (day_temperature_k - night_temperature_k) * (h - big_h) / (big_h * c)
-    coldest = float(np.min(t)) if t.size else 1.0
+    finite = np.isfinite(t)
+    coldest = float(np.min(t[finite])) if finite.any() else 1.0
     if not coldest > 0:
+        where = np.flatnonzero(finite.ravel())[np.argmin(t[finite])]
         raise TemperatureMapError(
-            f"temperature map goes down to {coldest:.4g} K (thickness {float(h.flat[np.argmin(t)]):.4g}"
-            f" m): raise night_temperature or lower day_temperature (T_night = "
-            f"{night_temperature_k:g} K, T_day = {day_temperature_k:g} K)")
+            f"temperature map goes down to {coldest:.4g} K (thickness "
+            f"{float(np.broadcast_to(h, t.shape).flat[where]):.4g} m): raise night_temperature or "
+            f"lower day_temperature (T_night = {night_temperature_k:g} K, T_day = "
+            f"{day_temperature_k:g} K)")
     return t

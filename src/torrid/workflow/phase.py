@@ -27,6 +27,10 @@ offsets, offset_of_maximum = (phase_eclipse - phase_max) x 360 deg (positive = p
 eclipse = eastward hotspot; phase_eclipse = 0.5 on a circular orbit) and
 offset_of_minimum = -phase_min x 360 deg (wrapped to [-180, 180)), the first harmonic of the
 curve (its peak-to-peak amplitude and offset), and the map's own hotspot offsets from the run.
+Those are east-positive in grid longitude: on a retrograde run (attribute rotation_sense = -1)
+the planet turns westward in grid longitudes, its hotspot offset is negative where the curve
+still peaks before eclipse (a mirror image of planet, orbit and observer shows the same light
+curve), so compare the curve's offsets with rotation_sense x the map's.
 """
 
 from __future__ import annotations
@@ -99,12 +103,15 @@ def run_orbit(ds: xr.Dataset) -> tuple[Orbit | None, str]:
     return None, "assumed synchronous and circular (no configuration_json)"
 
 
-def _per_point(ds: xr.Dataset, name: str, required: bool, source: str):
-    """A per-point value: a variable (sweep tables), a dataset attribute, or NaN."""
+def _per_point(ds: xr.Dataset, name: str, required: bool, source: str, alias: str = ""):
+    """A per-point value: a variable (sweep tables; also under ``alias`` if it has no time
+    dim), a dataset attribute, or NaN."""
     if name in ds.data_vars or name in ds.coords:
         return ds[name]
     if name in ds.attrs:
         return float(ds.attrs[name])
+    if alias and alias in ds and "time" not in ds[alias].dims:
+        return ds[alias]
     if required:
         raise PhaseCurveError(f"{source}: no {name!r} (variable or attribute): phase curves need "
                               "a hot-planet run")
@@ -193,7 +200,7 @@ def _phase_curve(ds: xr.Dataset, settings: ObserverSettings, source: str) -> xr.
     return _assemble(ds, settings, band, ratio, disk, phases[:n], phase_ecl, coords, param_dims,
                      offset[:n], times, dict(t_night=t_night, t_day=t_day, t0=t0,
                                              orbit_source=orbit_source, map_source=map_source,
-                                             source=source))
+                                             source=source, sense=sense))
 
 
 def _last_substellar_longitude(ds: xr.Dataset) -> float:
@@ -279,16 +286,18 @@ def _assemble(ds, settings, band, ratio, disk, phases, phase_ecl, coords, param_
         "harmonic_amplitude": _variable(p, 2 * semi, "ppm",
                                         "peak-to-peak amplitude of the first harmonic"),
         "harmonic_offset": _variable(p, wrap_degrees((phase_ecl - phase_h) * 360), "degree",
-                                     "(eclipse phase - phase of the first harmonic's maximum) x 360"),
+                                     "(eclipse phase - phase of the first harmonic's maximum)"
+                                     " x 360"),
         "eclipse_phase": _variable((), phase_ecl, "1", "orbital phase of mid-eclipse"),
     }
     for name, long_name in (("hotspot_offset", "the map's hotspot offset (equatorial maximum)"),
                             ("hotspot_offset_harmonic",
                              "the map's hotspot offset (first harmonic of the equatorial band)")):
-        value = _per_point(ds, f"final_{name}", False, "")
-        value = value.values if isinstance(value, xr.DataArray) else value
+        value = _per_point(ds, f"final_{name}", False, "", alias=name)
+        if isinstance(value, xr.DataArray):  # a sweep table's variable: onto the curve's dims
+            value = value.expand_dims([d for d in p if d not in value.dims]).transpose(*p).values
         data[f"map_{name}"] = _variable(p, np.broadcast_to(value, curve.shape[:-1]), "degree",
-                                        long_name)
+                                        f"{long_name}, east positive in grid longitude")
     if times is not None:
         data["time"] = _variable(("phase",), times[:n], "days",
                                  "simulated time of each phase sample")
@@ -317,6 +326,7 @@ def _attributes(ds, settings: ObserverSettings, band: Band, info: dict) -> dict:
         "redistribution": s.redistribution,
         "argument_of_periastron_deg": s.argument_of_periastron, "phases": s.phases,
         "temperature_map": "T = T_night + (T_day - T_night) (h - H) / (H dH/H)",
+        "rotation_sense": int(info["sense"]),
         "map_source": info["map_source"], "orbit_source": info["orbit_source"],
         "source_run": info["source"],
         "run_configuration_json": ds.attrs.get("configuration_json", ""),

@@ -126,8 +126,8 @@ def handle(args: argparse.Namespace) -> int:
 
 def summary_line(pc) -> str:
     """One line of the headline numbers of a (single) phase curve."""
-    return (f"eclipse depth {float(pc.eclipse_depth):.1f} ppm, nightside {float(pc.nightside_flux):.1f}"
-            f" ppm, amplitude {float(pc.amplitude):.1f} ppm; peak at phase "
+    return (f"eclipse depth {float(pc.eclipse_depth):.1f} ppm, nightside "
+            f"{float(pc.nightside_flux):.1f} ppm, amplitude {float(pc.amplitude):.1f} ppm; peak at phase "
             f"{float(pc.phase_of_maximum):.3f} (offset {float(pc.offset_of_maximum):+.1f} deg; "
             f"map hotspot {float(pc.map_hotspot_offset):+.1f} deg); {pc.attrs['band']}, "
             f"T_night {pc.attrs['night_temperature_K']:.0f} K, T_day "
