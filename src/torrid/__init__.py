@@ -19,12 +19,12 @@ class TorridWarning(UserWarning):
 
 from torrid.interface import accessor as _accessor  # noqa: E402,F401  (registers ds.torrid)
 
-_API = ("build_case_config", "run", "ModelConfig", "load_config")
+_API = ("build_case_config", "run", "ModelConfig", "load_config", "phase_curve", "ObserverSettings")
 __all__ = ["__version__", "TorridWarning", *_API]
 
 
 def __getattr__(name):
-    """Load the Python API on first use, so ``import torrid.physics`` stays light."""
+    """Load the Python API (and with it the whole package) on first use."""
     if name in _API:
         from torrid import api
 

@@ -19,10 +19,13 @@ from torrid.io.runfile import check_writable, write_atomic
 from torrid.io.tomlfile import load_config
 from torrid.physics.cases import CASES
 from torrid.io.config import ConfigError
+from torrid.io.observer import ObserverSettings
+from torrid.workflow.phase import phase_curve
 from torrid.workflow.driver import RunFailedError, run_config
 from torrid.workflow.restart import RestartStore
 
-__all__ = ["build_case_config", "run", "load_config", "ModelConfig"]
+__all__ = ["build_case_config", "run", "load_config", "ModelConfig", "phase_curve",
+           "ObserverSettings"]
 
 
 def build_case_config(case: str = "williamson6", *, truncation: int = 42,
