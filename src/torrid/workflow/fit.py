@@ -147,10 +147,14 @@ def fit_sweep(curves: xr.Dataset, observed: ObservedCurve, *, offset_deg: float 
         rest = {d: best_index[d] for d in dims[2:]}
         plane = chi2.isel(rest).transpose(*main).values
         (xt, xlog), (yt, ylog) = (axis_transform(flux[d].values) for d in main)
-        xs, ys, zs = refine_minimum(plane, xt, yt)
-        for d, v, log in ((main[0], xs, xlog), (main[1], ys, ylog)):
-            out.attrs[f"estimate_{d}"] = 10**v if log else v
-        out.attrs["estimate_chi_square"] = zs
+        if np.isfinite(xt).all() and np.isfinite(yt).all():
+            xs, ys, zs = refine_minimum(plane, xt, yt)
+            for d, v, log in ((main[0], xs, xlog), (main[1], ys, ylog)):
+                out.attrs[f"estimate_{d}"] = 10**v if log else v
+            out.attrs["estimate_chi_square"] = zs
+        else:
+            out.attrs["estimate_note"] = ("no interpolated estimate: an axis has non-finite "
+                                          "values (e.g. inf for no drag)")
     if offset_deg is not None or amplitude_ppm is not None:
         ok = xr.ones_like(chi2, dtype=bool)
         if offset_deg is not None:
@@ -176,3 +180,41 @@ def synthetic_observation(curve: xr.DataArray, n_points: int, noise_ppm: float,
     noisy = values + rng.normal(0.0, noise_ppm, size=phases.size)
     return ObservedCurve(phase=phases, flux_ratio_ppm=noisy,
                          error_ppm=np.full(phases.size, float(noise_ppm)), source=source)
+
+
+def fit_table(observed_path, table_path, settings, *, output=None, overwrite: bool = False,
+              **comparison) -> xr.Dataset:
+    """Read a measured curve and a sweep table, fit (see :func:`fit_sweep`), optionally write.
+
+    Errors name the file: a table without maps, a missing file, a bad CSV line.
+    """
+    from pathlib import Path
+
+    from torrid.io.observed import read_observed_csv
+    from torrid.io.provenance import provenance_attrs
+    from torrid.io.runfile import write_atomic
+    from torrid.workflow.phase import phase_curve
+
+    observed = read_observed_csv(observed_path)
+    table_path = Path(table_path)
+    if not table_path.is_file():
+        raise FitError(f"{table_path}: no such sweep table")
+    try:
+        with xr.open_dataset(table_path) as ds:
+            table = ds.load()
+    except Exception as err:  # noqa: BLE001 - any reader failure means the same to the user
+        raise FitError(f"{table_path}: not a readable netCDF sweep table "
+                       f"({type(err).__name__})") from None
+    if "h" not in table:
+        raise FitError(f"{table_path}: the table has no maps; rebuild it with "
+                       "'torrid collect FOLDER --maps'")
+    curves = phase_curve(table, settings, source=str(table_path))
+    fit = fit_sweep(curves, observed, **comparison)
+    fit.attrs.update({k: v for k, v in curves.attrs.items() if isinstance(v, (str, int, float))
+                      and k not in fit.attrs})
+    fit.attrs["sweep_table"] = str(table_path)
+    fit.attrs.update(provenance_attrs({"observer": {k: v for k, v in vars(settings).items()
+                                                    if v is not None}}))
+    if output is not None:
+        write_atomic(fit, output, overwrite=overwrite)
+    return fit
