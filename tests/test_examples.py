@@ -54,3 +54,34 @@ def test_example_runs(name, tmp_path, monkeypatch):
     pngs = list(tmp_path.glob("*.png"))
     assert pngs and all(p.read_bytes()[:4] == b"\x89PNG" for p in pngs)
     assert list(tmp_path.glob("*.nc"))
+
+
+SMALL_DEMO = """\
+[numerics]
+truncation = 10
+[run]
+days = 6.0
+output_interval_days = 1.0
+stop_at_steady_state = false
+[sweep]
+name = "demo"
+[[sweep.axis]]
+key = "atmosphere.radiative_timescale_days"
+log_range = [0.1, 10.0, 3]
+[[sweep.axis]]
+key = "atmosphere.drag_timescale_days"
+log_range = [0.1, 10.0, 3]
+"""
+
+
+def test_demo_runs_the_whole_chain_briefly(tmp_path, capsys):
+    from torrid.interface.demo import run_demo
+
+    files = run_demo(tmp_path / "demo", workers=1, sweep_text=SMALL_DEMO, progress=False)
+    out = capsys.readouterr().out
+    assert "INVENTED observation" in out and "[5/5]" in out
+    for key in ("phase_nc", "phase_png", "observation_csv", "fit_nc", "fit_png", "table"):
+        assert files[key].exists(), key
+    assert files["recovered"]  # 15 ppm noise on 60 phases singles out the generating point
+    with pytest.raises(FileExistsError, match="--overwrite"):
+        run_demo(tmp_path / "demo", workers=1, sweep_text=SMALL_DEMO, progress=False)

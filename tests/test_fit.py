@@ -6,7 +6,8 @@ import xarray as xr
 from scipy import stats
 
 from torrid.io.observed import ObservedDataError, read_observed_csv, write_observed_csv
-from torrid.workflow.fit import (DELTA_CHI2, axis_transform, fit_sweep, refine_minimum,
+from torrid.io.observed import ObservedCurve
+from torrid.workflow.fit import (DELTA_CHI2, axis_transform, fit_sweep, interpolated_minimum,
                                  synthetic_observation)
 
 
@@ -52,6 +53,11 @@ def test_fit_recovers_the_generating_grid_point(truth):
     assert fit.within_95.sum() >= fit.within_68.sum() >= 1
     # the chi-square minimum is about the number of points for a correct model
     assert 20 < fit.attrs["chi_square_min"] < 90
+    # the interpolated estimate stays next to the generating point (within one grid cell)
+    for dim, index in zip(("radiative_timescale_days", "drag_timescale_days"), truth):
+        values = np.log10(curves[dim].values)
+        assert abs(np.log10(fit.attrs[f"estimate_{dim}"]) - values[index]) <= abs(
+            values[1] - values[0])
 
 
 def test_consistency_with_measured_offset_and_amplitude():
@@ -63,11 +69,18 @@ def test_consistency_with_measured_offset_and_amplitude():
     assert bool(fit.consistent[2, 1]) and int(fit.consistent.sum()) < fit.consistent.size
 
 
-def test_refined_minimum_of_a_quadratic_is_exact():
-    x, y = np.linspace(-1, 1, 7), np.linspace(0, 3, 5)
-    chi2 = (x[:, None] - 0.13) ** 2 * 40 + (y[None, :] - 1.61) ** 2 * 9 + 12
-    xs, ys, zs = refine_minimum(chi2, x, y)
-    assert (xs, ys, zs) == pytest.approx((0.13, 1.61, 12.0), abs=1e-9)
+def test_interpolated_estimate_between_grid_points():
+    # Curves linear in both (log) parameters: the bilinear interpolant is exact, so a noise-free
+    # observation made between grid points is located to the optimiser's tolerance.
+    x, y = np.linspace(-1, 1, 5), np.linspace(0, 3, 4)
+    phases = (np.arange(40) + 0.5) / 40
+    shape_a, shape_b = np.cos(2 * np.pi * phases), np.sin(2 * np.pi * phases)
+    model = (500 + 100 * x[:, None, None] * shape_a + 80 * y[None, :, None] * shape_b)
+    truth = (0.37, 1.9)
+    obs = ObservedCurve(phases, 500 + 100 * truth[0] * shape_a + 80 * truth[1] * shape_b,
+                        np.full(40, 5.0))
+    xs, ys, zs = interpolated_minimum(model, x, y, obs)
+    assert (xs, ys) == pytest.approx(truth, abs=1e-4) and zs < 1e-4
     assert axis_transform(np.logspace(-2, 2, 9))[1] and not axis_transform(np.arange(1, 5))[1]
 
 

@@ -59,3 +59,41 @@ def plot_phase_curve(pc: xr.Dataset, path: str | os.PathLike | None = None,
     if path is None:
         return fig
     return save_figure(fig, path, overwrite)
+
+
+def plot_phase_curve_family(pc: xr.Dataset, path: str | os.PathLike | None = None,
+                            overwrite: bool = False):
+    """Phase curves of a sweep table: one panel per value of the second swept axis, one line
+    per value of the first (coloured), transit and eclipse marked."""
+    import numpy as np
+
+    from torrid.interface.plots import plt, save_figure
+
+    flux = pc["flux_ratio"]
+    dims = [d for d in flux.dims if d != "phase"]
+    if len(dims) == 1:
+        flux = flux.expand_dims(_panel=[0])
+        dims = [dims[0], "_panel"]
+    first, second = dims[:2]
+    rest = {d: 0 for d in dims[2:]}
+    flux = flux.isel(rest)
+    n = flux.sizes[second]
+    fig, axes = plt.subplots(1, n, figsize=(3.2 * n, 3.4), sharey=True, squeeze=False,
+                             constrained_layout=True)
+    colours = plt.cm.viridis(np.linspace(0, 0.9, flux.sizes[first]))
+    for k, ax in enumerate(axes[0]):
+        for i, colour in enumerate(colours):
+            curve = flux.isel({first: i, second: k})
+            ax.plot(pc["phase"], curve, color=colour,
+                    label=f"{float(flux[first][i]):g}" if first in flux.coords else str(i))
+        ax.axvline(0.5, color="grey", ls="--", lw=0.8)
+        title = (f"{second.replace('_', ' ')} = {float(flux[second][k]):g}"
+                 if second in flux.coords and second != "_panel" else "")
+        ax.set_title(title, fontsize=9)
+        ax.set_xlabel("orbital phase")
+    axes[0][0].set_ylabel("flux ratio (ppm)")
+    axes[0][-1].legend(title=first.replace("_", " "), fontsize=7, title_fontsize=7)
+    fig.suptitle(f"phase curves over the sweep ({pc.attrs.get('band', '')})", fontsize=10)
+    if path is None:
+        return fig
+    return save_figure(fig, path, overwrite)

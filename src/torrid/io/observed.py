@@ -87,6 +87,7 @@ def write_observed_csv(curve: ObservedCurve, path: str | os.PathLike) -> Path:
     path = Path(path)
     fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
     with os.fdopen(fd, "w") as fh:
+        fh.write(f"# {curve.source}\n")
         fh.write("phase,flux_ratio_ppm,error_ppm\n")
         for row in zip(curve.phase, curve.flux_ratio_ppm, curve.error_ppm):
             fh.write(",".join(f"{v:.10g}" for v in row) + "\n")

@@ -6,8 +6,9 @@ point p (its phase curve, linearly interpolated to the observed phases, periodic
 confidence regions of two jointly estimated parameters are chi^2 - chi^2_min <= 2.30 (68.27 %)
 and <= 6.18 (95.45 %) (Avni 1976; the values are the chi-square quantiles with 2 degrees of
 freedom, from memory of the usual tables and checked against scipy.stats.chi2 in the tests).
-The best estimate refines the best grid point with a quadratic fitted to chi^2 over its 3 x 3
-neighbourhood in the two main swept axes (in log10 of the values where they are log-spaced).
+The best estimate interpolates between grid points: the model curve is interpolated bilinearly
+between the grid points (in log10 of the axis values where they are log-spaced) and chi^2 of
+the interpolated curve is minimised over the cells around the best grid point.
 """
 
 from __future__ import annotations
@@ -66,30 +67,46 @@ def axis_transform(values) -> tuple[np.ndarray, bool]:
     return (np.log10(values) if log else values), log
 
 
-def refine_minimum(chi2: np.ndarray, x: np.ndarray, y: np.ndarray) -> tuple[float, float, float]:
-    """Minimum of a quadratic fitted to chi2 on the 3 x 3 neighbourhood of its grid minimum.
+def interpolated_minimum(model: np.ndarray, x: np.ndarray, y: np.ndarray,
+                         observed: ObservedCurve) -> tuple[float, float, float]:
+    """Minimise chi^2 of the bilinearly interpolated model over the cells around its best
+    grid point.
 
-    Returns (x*, y*, chi2*) in the given coordinates; the grid minimum if the quadratic is not
-    convex or its minimum leaves the neighbourhood.
+    Parameters
+    ----------
+    model : ndarray (nx, ny, nobs)
+        Model flux ratios (ppm) of each grid point at the observed phases.
+    x, y : ndarray
+        Axis coordinates (already log10 where the axis is log-spaced), ascending or not.
+    observed : ObservedCurve
+        The measurement.
+
+    Returns
+    -------
+    (x*, y*, chi2*) in the given coordinates.
     """
+    from scipy.interpolate import RegularGridInterpolator
+    from scipy.optimize import minimize
+
+    ox, oy = np.argsort(x), np.argsort(y)
+    x, y, model = x[ox], y[oy], model[ox][:, oy]
+    resid = (observed.flux_ratio_ppm - model) / observed.error_ppm
+    chi2 = np.sum(resid**2, axis=-1)
     i, j = np.unravel_index(np.nanargmin(chi2), chi2.shape)
-    best = (float(x[i]), float(y[j]), float(chi2[i, j]))
-    ii = range(max(i - 1, 0), min(i + 2, len(x)))
-    jj = range(max(j - 1, 0), min(j + 2, len(y)))
-    pts = [(x[a], y[b], chi2[a, b]) for a in ii for b in jj if np.isfinite(chi2[a, b])]
-    if len(pts) < 6 or len(ii) < 3 or len(jj) < 3:
-        return best
-    px, py, pz = (np.array(c, float) for c in zip(*pts))
-    design = np.column_stack([np.ones_like(px), px, py, px * px, px * py, py * py])
-    c0, cx, cy, cxx, cxy, cyy = np.linalg.lstsq(design, pz, rcond=None)[0]
-    hessian = np.array([[2 * cxx, cxy], [cxy, 2 * cyy]])
-    if np.any(np.linalg.eigvalsh(hessian) <= 0):
-        return best
-    xs, ys = np.linalg.solve(hessian, [-cx, -cy])
-    if not (min(px) <= xs <= max(px) and min(py) <= ys <= max(py)):
-        return best
-    zs = c0 + cx * xs + cy * ys + cxx * xs * xs + cxy * xs * ys + cyy * ys * ys
-    return float(xs), float(ys), float(zs)
+    if not np.isfinite(model).all() or len(x) < 2 or len(y) < 2:
+        return float(x[i]), float(y[j]), float(chi2[i, j])
+    interp = RegularGridInterpolator((x, y), model, method="linear")
+
+    def objective(p):
+        return float(np.sum(((observed.flux_ratio_ppm - interp(p)[0]) / observed.error_ppm) ** 2))
+
+    bounds = [(x[max(i - 1, 0)], x[min(i + 1, len(x) - 1)]),
+              (y[max(j - 1, 0)], y[min(j + 1, len(y) - 1)])]
+    result = minimize(objective, [x[i], y[j]], method="Powell", bounds=bounds,
+                      options={"xtol": 1e-6, "ftol": 1e-10})
+    if result.fun <= chi2[i, j]:
+        return float(result.x[0]), float(result.x[1]), float(result.fun)
+    return float(x[i]), float(y[j]), float(chi2[i, j])
 
 
 def fit_sweep(curves: xr.Dataset, observed: ObservedCurve, *, offset_deg: float | None = None,
@@ -145,10 +162,10 @@ def fit_sweep(curves: xr.Dataset, observed: ObservedCurve, *, offset_deg: float 
     if len(dims) >= 2:
         main = dims[:2]
         rest = {d: best_index[d] for d in dims[2:]}
-        plane = chi2.isel(rest).transpose(*main).values
+        model = model_at_phases(flux.isel(rest).transpose(*main, "phase"), observed.phase).values
         (xt, xlog), (yt, ylog) = (axis_transform(flux[d].values) for d in main)
         if np.isfinite(xt).all() and np.isfinite(yt).all():
-            xs, ys, zs = refine_minimum(plane, xt, yt)
+            xs, ys, zs = interpolated_minimum(model, xt, yt, observed)
             for d, v, log in ((main[0], xs, xlog), (main[1], ys, ylog)):
                 out.attrs[f"estimate_{d}"] = 10**v if log else v
             out.attrs["estimate_chi_square"] = zs
@@ -195,6 +212,9 @@ def fit_table(observed_path, table_path, settings, *, output=None, overwrite: bo
     from torrid.io.runfile import write_atomic
     from torrid.workflow.phase import phase_curve
 
+    from torrid.io.observer import ObserverSettings
+
+    settings = settings or ObserverSettings()
     observed = read_observed_csv(observed_path)
     table_path = Path(table_path)
     if not table_path.is_file():

@@ -13,6 +13,7 @@ import sys
 
 from torrid import __version__
 from torrid.interface.cli import collect as collect_cmd
+from torrid.interface.cli import demo as demo_cmd
 from torrid.interface.cli import fit as fit_cmd
 from torrid.interface.cli import phase as phase_cmd
 from torrid.interface.cli import plot as plot_cmd
@@ -21,7 +22,7 @@ from torrid.interface.cli import sweep as sweep_cmd
 from torrid.workflow.driver import RunFailedError
 
 SUBCOMMANDS = {"run": run_cmd, "plot": plot_cmd, "phase": phase_cmd, "sweep": sweep_cmd,
-               "collect": collect_cmd, "fit": fit_cmd}
+               "collect": collect_cmd, "fit": fit_cmd, "demo": demo_cmd}
 USER_ERRORS = (ValueError, FileExistsError, FileNotFoundError, KeyError)
 
 
