@@ -3,6 +3,8 @@ ConfigError; no other exception escapes the validators (hypothesis)."""
 
 import math
 
+import numpy as np
+
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
@@ -73,3 +75,59 @@ def test_random_configuration_files(tmp_path, lines):
 @given(st.text(max_size=40))
 def test_random_overrides(assignment):
     _accepted_or_one_line(lambda: ModelConfig().with_override(assignment))
+
+
+# --- data files: measured phase curves and band responses ------------------------------------
+from torrid.io.observed import ObservedDataError, read_observed_csv  # noqa: E402
+from torrid.io.observer import (ObserverError, ObserverSettings, read_observer_toml,  # noqa: E402
+                                read_response)
+
+cells = st.one_of(st.sampled_from(["0.1", "0.5", "0.99", "1.0", "-1", "nan", "inf", "1e400",
+                                   "abc", "", " ", "2.5", "10", "0", "1e-9", "#", "\"3\""]),
+                  st.floats(allow_nan=True, allow_infinity=True).map(repr),
+                  st.text(max_size=6))
+csv_rows = st.lists(st.lists(cells, min_size=0, max_size=4).map(",".join), max_size=8)
+
+
+def _one_line_or_accepted(call, errors):
+    try:
+        return call()
+    except errors as err:
+        assert str(err) and "\n" not in str(err)
+        return None
+
+
+@settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(csv_rows)
+def test_random_observed_csv_files(tmp_path, rows):
+    path = tmp_path / "observed.csv"
+    path.write_bytes("\n".join(rows).encode("utf-8", errors="replace"))
+    curve = _one_line_or_accepted(lambda: read_observed_csv(path), ObservedDataError)
+    if curve is not None:
+        assert curve.phase.size >= 3 and (curve.error_ppm > 0).all()
+        assert ((curve.phase >= 0) & (curve.phase < 1)).all()
+
+
+@settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(csv_rows)
+def test_random_response_files(tmp_path, rows):
+    path = tmp_path / "response.csv"
+    path.write_bytes("\n".join(rows).encode("utf-8", errors="replace"))
+    table = _one_line_or_accepted(lambda: read_response(path), ObserverError)
+    if table is not None:
+        wavelength, response = table
+        assert (np.diff(wavelength) > 0).all() and (response >= 0).all()
+
+
+@settings(max_examples=200, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
+@given(st.lists(st.one_of(st.sampled_from(["[observer]", "band = '4-5'", "band = [5, 4]",
+                                           "inclination = 200", "phases = 0", "star_temperature = -3",
+                                           "radius_ratio = 'x'", "weighting = 'photon'",
+                                           "bogus = 1", "[other]", "albedo = 1.5"]),
+                          st.text(max_size=12)), max_size=6))
+def test_random_observer_sections(tmp_path, lines):
+    path = tmp_path / "observer.toml"
+    path.write_bytes("\n".join(lines).encode("utf-8", errors="replace"))
+    section = _one_line_or_accepted(lambda: read_observer_toml(path), (ObserverError, ConfigError))
+    if section is not None:
+        _one_line_or_accepted(lambda: ObserverSettings(**section), ObserverError)
