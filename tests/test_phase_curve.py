@@ -362,3 +362,14 @@ def test_cli_bad_files_are_one_line(run_file, tmp_path, capsys):
         err = capsys.readouterr().err
         assert err.startswith("torrid: error:") and fragment in err
         assert len(err.splitlines()) == 1
+
+
+def test_band_outside_the_blackbody_range_is_refused(tmp_path):
+    from torrid.io.observer import ObserverError, ObserverSettings, read_response
+
+    with pytest.raises(ObserverError, match="must lie within 0.2-1000 micron"):
+        ObserverSettings(band="0.001-0.01")
+    response = tmp_path / "xray.csv"
+    response.write_text("0.01,1\n0.02,1\n")
+    with pytest.raises(ObserverError, match="xray.csv: response = 0.01-0.02 micron"):
+        read_response(response)

@@ -61,7 +61,24 @@ def parse_band(text) -> tuple[float, float]:
         raise ObserverError(f"band = {text!r}: must be LO-HI in micron, e.g. 4.0-5.0")
     if not 0 < pair[0] < pair[1]:
         raise ObserverError(f"band = {text!r}: must be LO-HI in micron with 0 < LO < HI")
+    check_wavelengths("band", pair)
     return pair
+
+
+#: Wavelengths (micron) where a star's spectrum is taken as a blackbody: from the near
+#: ultraviolet to the far infrared. Outside, stellar spectra depart far from a Planck curve
+#: (line blanketing and the Balmer jump shortward, chromospheres longward): common practice,
+#: the limits are a rounded choice of ours.
+BLACKBODY_RANGE_UM = (0.2, 1000.0)
+
+
+def check_wavelengths(what: str, wavelengths) -> None:
+    """Refuse wavelengths outside :data:`BLACKBODY_RANGE_UM` (one-line ObserverError)."""
+    lo, hi = float(min(wavelengths)), float(max(wavelengths))
+    low, high = BLACKBODY_RANGE_UM
+    if lo < low or hi > high:
+        raise ObserverError(f"{what} = {lo:g}-{hi:g} micron: must lie within {low:g}-{high:g} "
+                            "micron, where the star is treated as a blackbody")
 
 
 @dataclass(frozen=True)
@@ -267,4 +284,8 @@ def read_response(path: str | os.PathLike) -> tuple[np.ndarray, np.ndarray]:
     table = np.array(rows)
     if not table[:, 1].max() > 0:
         raise ObserverError(f"{path}: the response is zero everywhere")
+    try:
+        check_wavelengths("response", table[:, 0])
+    except ObserverError as err:
+        raise ObserverError(f"{path}: {err}") from None
     return table[:, 0], table[:, 1]
