@@ -319,3 +319,20 @@ def test_non_convergence_raises(tr):
     lon = np.arange(0.0, 360.0, 5.0)
     with pytest.raises(FitNotConvergedError, match="did not converge in 3 iterations"):
         fit_scalar(tr, lat, lon, harmonic_field(lat, lon), maxiter=3)
+
+
+def test_run_starts_from_another_runs_fields(tmp_path):
+    """A run started from a run file's last output continues from that state: on the same grid
+    the fit is exact (the fields lie in the model space), so the new run's first output equals
+    the old run's last to the solver tolerance."""
+    import torrid
+
+    config = torrid.ModelConfig().replace(numerics={"truncation": 21},
+                                          run={"days": 2.0, "stop_at_steady_state": False})
+    first = torrid.run(config, tmp_path / "first.nc")
+    again = torrid.run(config.replace(run={"initial_fields": str(tmp_path / "first.nc")}))
+    for name in ("h", "u", "v", "vorticity"):
+        a, b = first[name].isel(time=-1).values, again[name].isel(time=0).values
+        assert np.abs(a - b).max() <= 1e-8 * np.abs(a).max(), name
+    with pytest.raises(torrid.io.config.ConfigError, match="no such file"):
+        torrid.run(config.replace(run={"initial_fields": str(tmp_path / "none.nc")}))

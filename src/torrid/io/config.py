@@ -156,6 +156,9 @@ class RunConfig:
     restart_interval_days : float
         Simulated days between restart files (rounded to whole output intervals); runs that
         write a run file also write restart data at the end.
+    initial_fields : str or None
+        A netCDF file with h, u, v on a lon-lat grid (a run file will do) to start from instead
+        of rest (planets) or the case's initial state; fitted onto the model's harmonics.
     """
 
     days: float = 200.0
@@ -164,6 +167,7 @@ class RunConfig:
     steady_tolerance: float = 1e-2
     steady_window_days: float | None = None
     restart_interval_days: float = 10.0
+    initial_fields: str | None = None
 
     def __post_init__(self):
         s, set_ = "run", object.__setattr__
@@ -184,6 +188,10 @@ class RunConfig:
         set_(self, "restart_interval_days", _number(s, "restart_interval_days",
                                                     self.restart_interval_days, minimum=0,
                                                     strict_min=True))
+        if self.initial_fields is not None and (not isinstance(self.initial_fields, str)
+                                                or not self.initial_fields.strip()):
+            raise ConfigError(f"run.initial_fields = {_show(self.initial_fields)}: must be a "
+                              "file name")
 
 
 @dataclass(frozen=True)

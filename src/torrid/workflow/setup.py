@@ -3,12 +3,14 @@ from a validated configuration."""
 
 from __future__ import annotations
 
+import dataclasses
 import math
 from dataclasses import dataclass
 
 import numpy as np
 
-from torrid.io.config import SECONDS_PER_DAY, ModelConfig
+from torrid.io.config import SECONDS_PER_DAY, ConfigError, ModelConfig
+from torrid.io.initialfile import read_initial_fields
 from torrid.physics.cases import CASES, CaseSpec
 from torrid.physics.coriolis import coriolis_parameter
 from torrid.physics.fields import spectral_state
@@ -16,6 +18,8 @@ from torrid.physics.forcing import DayNightForcing
 from torrid.physics.grid import SpectralGrid
 from torrid.physics.linear import LinearTerms, hyperdiffusion_rates
 from torrid.physics.orbit import Orbit, pseudo_synchronous_ratio
+from torrid.physics.regrid import FitNotConvergedError, fit_state
+from torrid.physics.tendencies import GEOPOTENTIAL
 from torrid.physics.tendencies import Dynamics
 from torrid.physics.timestepping import IMEXStepper, automatic_time_step
 from torrid.physics.transforms import Transforms
@@ -169,6 +173,24 @@ def _planet_start(config: ModelConfig, grid: SpectralGrid, transforms: Transform
     )
 
 
+def _from_file(config: ModelConfig, transforms: Transforms, start: _Start):
+    """The initial state fitted to the fields of ``run.initial_fields`` (and the start with
+    its reference speed and, for cases, mean geopotential updated)."""
+    fields = read_initial_fields(config.run.initial_fields)
+    try:
+        state, fitted_mean = fit_state(transforms, fields.lat_deg, fields.lon_deg, fields.h_m,
+                                       fields.u, fields.v, config.planet.gravity_m_s2,
+                                       fields.surface_height_m)
+    except (ValueError, FitNotConvergedError) as err:
+        raise ConfigError(f"{config.run.initial_fields}: {err}") from None
+    mean = start.mean_geopotential if config.is_planet else fitted_mean
+    # phi' is relative to the model's reference geopotential: move the l = 0 coefficient
+    state[GEOPOTENTIAL, 0] += (fitted_mean - mean) * math.sqrt(4 * math.pi)
+    speed = float(np.sqrt(fields.u**2 + fields.v**2).max())
+    return state, dataclasses.replace(start, mean_geopotential=mean,
+                                      reference_speed_m_s=max(speed, start.reference_speed_m_s))
+
+
 def build_model(config: ModelConfig) -> Model:
     """Build the model of ``config`` with its initial state."""
     grid = SpectralGrid(config.numerics.truncation)
@@ -178,8 +200,11 @@ def build_model(config: ModelConfig) -> Model:
     else:
         start = _case_start(config, grid)
     g = config.planet.gravity_m_s2
-    state = spectral_state(transforms, start.u, start.v,
-                           g * start.thickness_m - start.mean_geopotential)
+    if config.run.initial_fields:
+        state, start = _from_file(config, transforms, start)
+    else:
+        state = spectral_state(transforms, start.u, start.v,
+                               g * start.thickness_m - start.mean_geopotential)
     dynamics = Dynamics(transforms, start.coriolis, start.mean_geopotential,
                         surface_geopotential=g * start.surface_height_m, forcing=start.forcing)
     case = None if config.is_planet else CASES[config.case.name]

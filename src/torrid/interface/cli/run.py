@@ -19,6 +19,7 @@ OPTION_FOR_KEY = {
     "run.output_interval_days": "--output-interval", "case.alpha_rad": "--alpha",
     "numerics.hyperdiffusion_days": "--hyperdiffusion-days", "numerics.time_step_s": "--time-step",
     "numerics.courant_number": "--courant", "numerics.threads": "--threads",
+    "run.initial_fields": "--initial",
 }
 
 
@@ -57,6 +58,9 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     p.add_argument("--courant", type=float, default=None, metavar="C",
                    help="advective Courant number of the automatic time step (default: 1.0)")
     p.add_argument("--threads", type=int, default=None, help="transform threads (default: 1)")
+    p.add_argument("--initial", default=None, metavar="FIELDS.nc",
+                   help="start from h, u, v in this file (any lon-lat grid; a run file's last "
+                        "output will do), fitted onto the model's harmonics")
     p.add_argument("-o", "--output", type=Path, default=None, metavar="FILE.nc",
                    help="run file to write (default: runs/<name>.nc)")
     p.add_argument("--overwrite", action="store_true", help="replace existing output files")
@@ -88,7 +92,8 @@ def build_config(args: argparse.Namespace) -> tuple[ModelConfig, str]:
     numerics = {"truncation": args.truncation, "hyperdiffusion_days": args.hyperdiffusion_days,
                 "time_step_s": args.time_step, "courant_number": args.courant,
                 "threads": args.threads}
-    run_keys = {"days": args.days, "output_interval_days": args.output_interval}
+    run_keys = {"days": args.days, "output_interval_days": args.output_interval,
+                "initial_fields": args.initial}
     config = config.replace(numerics={k: v for k, v in numerics.items() if v is not None},
                             run={k: v for k, v in run_keys.items() if v is not None})
     for assignment in args.set:
