@@ -171,6 +171,14 @@ def _thinned(size: int) -> np.ndarray:
     return np.unique(np.linspace(0, size - 1, MAX_PANELS_PER_AXIS).round().astype(int))
 
 
+def _ascending(coord: xr.DataArray, indices: np.ndarray) -> np.ndarray:
+    """``indices`` ordered by ascending coordinate value (file order if not numeric)."""
+    values = coord.values[indices]
+    if np.issubdtype(values.dtype, np.number):
+        return indices[np.argsort(values, kind="stable")]
+    return indices
+
+
 def plot_sweep_maps(table: xr.Dataset, path: str | os.PathLike | None = None,
                     overwrite: bool = False):
     """Small multiples of the final thickness map h of every point over the two main axes
@@ -179,8 +187,9 @@ def plot_sweep_maps(table: xr.Dataset, path: str | os.PathLike | None = None,
         raise ValueError("the sweep table has no maps (collect it with --maps)")
     dims = main_dimensions(table) or [d for d in table["run_status"].dims][:1]
     held, fixed = _held(table, dims)
-    cols = _thinned(held.sizes[dims[0]])
-    rows = _thinned(held.sizes[dims[1]]) if len(dims) > 1 else np.array([0])
+    cols = _ascending(held[dims[0]], _thinned(held.sizes[dims[0]]))
+    rows = (_ascending(held[dims[1]], _thinned(held.sizes[dims[1]])) if len(dims) > 1
+            else np.array([0]))
     h = held["h"] / 1e3
     finite = h.values[np.isfinite(h.values)]
     vmin, vmax = (float(finite.min()), float(finite.max())) if finite.size else (0.0, 1.0)
@@ -207,6 +216,8 @@ def plot_sweep_maps(table: xr.Dataset, path: str | os.PathLike | None = None,
             ax.tick_params(labelsize=6)
     if mesh is not None:
         fig.colorbar(mesh, ax=axes, label="layer thickness h (km)", shrink=0.8)
+    fig.supxlabel("longitude east of the substellar meridian (degrees)", fontsize=8)
+    fig.supylabel("latitude (degrees north)", fontsize=8)
     fig.suptitle(f"sweep {table.attrs.get(SWEEP_ATTRIBUTE, '')}: final thickness maps"
                  + (f" ({fixed})" if fixed else ""), fontsize=9)
     if path is None:

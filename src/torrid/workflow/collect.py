@@ -11,13 +11,16 @@ non-dimension coordinates along their group's dimension. Variables, from each po
 * ``steady_state_reached`` (1, 0; NaN when there is no run), ``steady_state_time_days``;
 * ``run_status`` (complete, steady, failed, missing), ``run_status_reason`` and ``run_file``
   (the point's file name in the folder, also for points still missing);
-* with ``maps``: the final ``h``, ``u``, ``v`` (dimensions ..., lat, lon).
+* ``nightside_thickness_m`` and ``forcing_contrast`` (unless swept: then the coordinate), so
+  that ``table.torrid.phase_curve()`` turns the table into phase curves;
+* with ``maps``: ``h``, ``u``, ``v`` of the last output (dimensions ..., lat, lon).
 
 The table is plain netCDF: ``xarray.open_dataset`` is all a reader needs.
 """
 
 from __future__ import annotations
 
+import copy
 import json
 import os
 from pathlib import Path
@@ -26,12 +29,19 @@ import numpy as np
 import xarray as xr
 
 import torrid
-from torrid.io.pointfile import FINISHED, MISSING, read_point
+from torrid.io.config import ConfigError, ModelConfig
+from torrid.io.pointfile import FINISHED, read_point
 from torrid.io.runfile import write_atomic
 from torrid.io.sweepmanifest import read_manifest
 from torrid.io.variables import COORDINATES, VARIABLES
 
 MAP_VARIABLES = ("h", "u", "v")
+#: Inputs of each point's forcing that become variables over the sweep (the thickness ->
+#: temperature scaling of a phase curve), unless swept (then the coordinate holds them).
+FORCING = {
+    "nightside_thickness_m": {"units": "m", "long_name": "nightside equilibrium thickness H"},
+    "forcing_contrast": {"units": "1", "long_name": "forcing contrast dH / H"},
+}
 #: Units of a configuration key from its name's suffix (longest first).
 _UNIT_SUFFIXES = (("_m2_s2", "m2 s-2"), ("_m_s2", "m s-2"), ("_days", "days"), ("_deg", "degree"),
                   ("_rad", "rad"), ("_s", "s"), ("_m", "m"))
@@ -104,25 +114,54 @@ def collect_sweep(folder: str | os.PathLike, maps: bool = False) -> xr.Dataset:
     manifest = read_manifest(folder)
     dims = [d["name"] for d in manifest["dimensions"]]
     shape = tuple(len(d["axes"][0]["values"]) for d in manifest["dimensions"])
-    results = {}
-    for point in manifest["points"]:
-        results[tuple(point["index"])] = (point, read_point(folder / point["file"], point["id"]))
+    results = {tuple(p["index"]): (p, read_point(folder / p["file"], p["id"]))
+               for p in manifest["points"]}
     finished = [r for _, r in results.values() if r.status in FINISHED]
     finals = sorted({k[len("final_"):] for r in finished for k, v in r.attrs.items()
                      if k.startswith("final_") and _is_number(v)})
-    described = next((str(r.attrs["final_values"]) for r in finished if "final_values" in r.attrs),
-                     "the last output of each run")
+    data = _point_variables(results, manifest["base_configuration"], dims, shape, finals)
+    coords = {axis["name"]: _coordinate(axis, dim["name"])
+              for dim in manifest["dimensions"] for axis in dim["axes"]}
+    for name in [n for n in FORCING if n in coords]:  # swept: the coordinate holds it
+        del data[name]
+    if maps:
+        maps_data = _point_maps(folder, results, dims, shape)
+        if maps_data is not None:
+            grid, fields = maps_data
+            coords.update(grid)
+            data.update(fields)
+    return xr.Dataset(data, coords=coords,
+                      attrs=_table_attrs(manifest, data["run_status"].values, finished))
+
+
+def _forcing_inputs(base: dict, point: dict) -> dict:
+    """nightside_thickness_m and forcing_contrast of a point, from its configuration (so they
+    are known before it has run); NaN if the configuration is invalid."""
+    data = copy.deepcopy(base)
+    for key, value in point["parameters"].items():
+        section, _, name = key.partition(".")
+        data.setdefault(section, {})[name] = value
+    try:
+        config = ModelConfig.from_dict(data)
+    except ConfigError:
+        return {"nightside_thickness_m": np.nan, "forcing_contrast": np.nan}
+    atm = config.atmosphere
+    return {"nightside_thickness_m": atm.mean_geopotential_m2_s2 / config.planet.gravity_m_s2,
+            "forcing_contrast": atm.forcing_contrast}
+
+
+def _point_variables(results: dict, base: dict, dims: list, shape: tuple, finals: list) -> dict:
+    """The per-point variables (everything but the maps) of the table."""
     numbers = {name: np.full(shape, np.nan) for name in
-               [*finals, "steady_state_reached", "steady_state_time_days"]}
+               [*finals, "steady_state_reached", "steady_state_time_days", *FORCING]}
     strings = {name: np.full(shape, "", dtype=object) for name in
                ("run_status", "run_status_reason", "run_file")}
-    fields, grid = {}, None
     for index, (point, result) in results.items():
+        for name, value in _forcing_inputs(base, point).items():
+            numbers[name][index] = value
         strings["run_status"][index] = result.status
         strings["run_status_reason"][index] = result.reason
         strings["run_file"][index] = point["file"]
-        if result.status == MISSING:
-            continue
         if "steady_state_reached" in result.attrs:
             numbers["steady_state_reached"][index] = float(result.attrs["steady_state_reached"])
         if result.status not in FINISHED:
@@ -131,22 +170,7 @@ def collect_sweep(folder: str | os.PathLike, maps: bool = False) -> xr.Dataset:
             result.attrs.get("steady_state_time_days", np.nan))
         for name in finals:
             numbers[name][index] = float(result.attrs.get(f"final_{name}", np.nan))
-        if maps:
-            snapshot = _final_maps(folder / point["file"])
-            if snapshot is None:
-                continue
-            if grid is None:
-                grid = (snapshot["lat"], snapshot["lon"])
-                fields = {n: np.full(shape + snapshot["h"].shape, np.nan) for n in MAP_VARIABLES}
-            elif snapshot["h"].shape != fields["h"].shape[len(shape):]:
-                raise ValueError(f"{folder}: --maps needs every point on one grid, but "
-                                 f"{point['file']} has {snapshot['h'].shape[0]} latitudes, "
-                                 f"not {fields['h'].shape[len(shape)]} (truncation swept?)")
-            for name in MAP_VARIABLES:
-                fields[name][index] = snapshot[name]
-    data = {}
-    for name in finals:
-        data[name] = xr.Variable(dims, numbers[name], _diagnostic_attrs(name))
+    data = {name: xr.Variable(dims, numbers[name], _diagnostic_attrs(name)) for name in finals}
     data["steady_state_reached"] = xr.Variable(dims, numbers["steady_state_reached"], {
         "units": "1", "long_name": "1 if the run stopped at its steady state, 0 if it ran "
                                    "its days (NaN: no run)"})
@@ -158,20 +182,47 @@ def collect_sweep(folder: str | os.PathLike, maps: bool = False) -> xr.Dataset:
         "long_name": "why the point has its status"})
     data["run_file"] = xr.Variable(dims, strings["run_file"], {
         "long_name": "the point's run file in the sweep folder (named by its configuration)"})
-    coords = {}
-    for dim in manifest["dimensions"]:
-        for axis in dim["axes"]:
-            coords[axis["name"]] = _coordinate(axis, dim["name"])
-    if grid is not None:
-        coords["lat"] = xr.Variable(("lat",), grid[0], COORDINATES["lat"].attrs())
-        coords["lon"] = xr.Variable(("lon",), grid[1], COORDINATES["lon"].attrs())
+    for name, attrs in FORCING.items():  # what a phase curve of the table needs
+        data[name] = xr.Variable(dims, numbers[name], attrs)
+    return data
+
+
+def _point_maps(folder: Path, results: dict, dims: list, shape: tuple):
+    """(lat/lon coordinates, h/u/v variables) of the finished points, or None if none."""
+    fields, grid = None, None
+    for index, (point, result) in results.items():
+        if result.status not in FINISHED:
+            continue
+        snapshot = _final_maps(folder / point["file"])
+        if snapshot is None:
+            continue
+        if fields is None:
+            grid = (snapshot["lat"], snapshot["lon"])
+            fields = {n: np.full(shape + snapshot["h"].shape, np.nan) for n in MAP_VARIABLES}
+        elif snapshot["h"].shape != fields["h"].shape[len(shape):]:
+            raise ValueError(f"{folder}: --maps needs every point on one grid, but "
+                             f"{point['file']} has {snapshot['h'].shape[0]} latitudes, "
+                             f"not {fields['h'].shape[len(shape)]} (truncation swept?)")
         for name in MAP_VARIABLES:
-            var = VARIABLES[name]
-            data[name] = xr.Variable((*dims, "lat", "lon"), fields[name],
-                                     {**var.attrs(), "long_name": f"{var.long_name}, at the "
-                                                                  "last output"})
-    status = strings["run_status"]
-    attrs = {
+            fields[name][index] = snapshot[name]
+    if fields is None:
+        return None
+    coords = {"lat": xr.Variable(("lat",), grid[0], COORDINATES["lat"].attrs()),
+              "lon": xr.Variable(("lon",), grid[1], COORDINATES["lon"].attrs())}
+    data = {}
+    for name in MAP_VARIABLES:
+        var = VARIABLES[name]
+        data[name] = xr.Variable((*dims, "lat", "lon"), fields[name],
+                                 {**var.attrs(), "long_name": f"{var.long_name}, at the last "
+                                                              "output"})
+    return coords, data
+
+
+def _table_attrs(manifest: dict, status: np.ndarray, finished: list) -> dict:
+    described = next((str(r.attrs["final_values"]) for r in finished if "final_values" in r.attrs),
+                     "the last output of each run")
+    rates = {float(r.attrs["rotation_rate_s"]) for r in finished if "rotation_rate_s" in r.attrs}
+    return {
         "Conventions": "CF-1.10",
         "title": f"torrid sweep table: {manifest['torrid_sweep']}",
         "torrid_sweep": manifest["torrid_sweep"],
@@ -184,13 +235,13 @@ def collect_sweep(folder: str | os.PathLike, maps: bool = False) -> xr.Dataset:
         "points_total": int(status.size),
         **{f"points_{s}": int((status == s).sum())
            for s in ("complete", "steady", "failed", "missing")},
+        **({"rotation_rate_s": rates.pop()} if len(rates) == 1 else {}),
         "final_values": described,
         "comment": "one point per combination of the swept values; the diagnostics are each "
                    "run's final_<name> attributes (final_values says what they are; NaN for "
                    "failed and missing points), the maps its last output; run_file names the "
                    "point's run file in the sweep folder",
     }
-    return xr.Dataset(data, coords=coords, attrs=attrs)
 
 
 def _now() -> str:

@@ -33,7 +33,7 @@ from torrid.io.pointfile import FAILED, FINISHED, canonical_json, read_point, wr
 from torrid.io.sweepfile import SweepPoint, SweepSpec
 from torrid.io.sweepmanifest import manifest_data, write_manifest
 from torrid.workflow import collect
-from torrid.workflow.sweep_task import THREAD_VARIABLES, ignore_interrupts, run_point
+from torrid.workflow.sweep_task import THREAD_VARIABLES, init_worker, run_point
 
 LOCK_NAME = ".sweep.lock"
 
@@ -155,6 +155,8 @@ def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | N
     """
     if workers is not None and workers < 1:
         raise SweepError(f"--workers = {workers}: must be >= 1")
+    if scheduler is not None:
+        _import_distributed()  # a missing optional extra is refused before anything is written
     folder = spec.folder.resolve()
     folder.mkdir(parents=True, exist_ok=True)
     outcome = SweepOutcome(folder=folder)
@@ -194,11 +196,10 @@ def _local_executor(workers: int):
         os.environ[name] = "1"
     executor = cf.ProcessPoolExecutor(max_workers=workers,
                                       mp_context=multiprocessing.get_context("spawn"),
-                                      initializer=ignore_interrupts)
+                                      initializer=init_worker)
     try:
         yield executor, workers
     except BaseException:
-        executor.shutdown(wait=False, cancel_futures=True)
         _stop_workers(executor)
         raise
     else:
@@ -217,19 +218,29 @@ def _stop_workers(executor: cf.ProcessPoolExecutor) -> None:
     if kill is not None:
         kill()
         return
-    for process in list(getattr(executor, "_processes", {}).values()):
+    processes = list((getattr(executor, "_processes", None) or {}).values())
+    for process in processes:
         with contextlib.suppress(Exception):
             process.kill()
+    for process in processes:
+        with contextlib.suppress(Exception):
+            process.join(5)
+    executor.shutdown(wait=True, cancel_futures=True)  # the pool is broken now: returns at once
 
 
-@contextlib.contextmanager
-def _dask_executor(address: str):
-    """A concurrent.futures executor on the dask.distributed cluster at ``address``."""
+def _import_distributed():
     try:
         import distributed
     except ImportError:
         raise SweepError("--scheduler needs dask.distributed, an optional extra: "
                          "pip install 'torrid[dist]'") from None
+    return distributed
+
+
+@contextlib.contextmanager
+def _dask_executor(address: str):
+    """A concurrent.futures executor on the dask.distributed cluster at ``address``."""
+    distributed = _import_distributed()
     try:
         client = distributed.Client(address, timeout="20s", set_as_default=False)
     except (OSError, TimeoutError, ValueError) as err:
@@ -283,6 +294,8 @@ def _execute(plan: Plan, folder: Path, workers: int | None, scheduler: str | Non
                 except Exception as err:  # noqa: BLE001 - reported, retried on the next run
                     errors.append(f"{point.file_name}: {type(err).__name__}: "
                                   f"{str(err).splitlines()[0] if str(err) else ''}")
+                    bar.set_postfix_str(f"{done} done, {failed} failed, {len(errors)} errors, "
+                                        f"{min(slots, len(pending))} running", refresh=False)
                     bar.update(1)
                     continue
                 _check_visible(result, scheduler)
@@ -290,8 +303,9 @@ def _execute(plan: Plan, folder: Path, workers: int | None, scheduler: str | Non
                     failed += 1
                 else:
                     done += 1
+                bar.set_postfix_str(f"{done} done, {failed} failed, "
+                                    f"{min(slots, len(pending))} running", refresh=False)
                 bar.update(1)
-        bar.set_postfix_str(f"{done} done, {failed} failed, 0 running", refresh=True)
     return errors
 
 

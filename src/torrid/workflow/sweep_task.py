@@ -19,11 +19,20 @@ def limit_threads(environ=os.environ) -> None:
         environ[name] = "1"
 
 
-def ignore_interrupts() -> None:
-    """Worker initializer: Ctrl-C goes to the sweep, which stops the workers itself."""
+def init_worker() -> None:
+    """Initializer of a local worker process.
+
+    Ctrl-C goes to the sweep, which stops its workers itself; and progress bars (disabled in
+    workers) get a thread lock instead of tqdm's default inter-process semaphore, which a
+    stopped worker would leave behind (a "leaked semaphore" warning at exit).
+    """
     import signal
+    import threading
+
+    from tqdm import tqdm
 
     signal.signal(signal.SIGINT, signal.SIG_IGN)
+    tqdm.set_lock(threading.RLock())
 
 
 def run_point(config_json: str, path: str) -> dict:
