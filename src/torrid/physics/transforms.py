@@ -33,7 +33,7 @@ class Transforms:
     """
 
     def __init__(self, grid: SpectralGrid, radius_m: float, nthreads: int = 1):
-        if 2 * grid.nlat < 2 * grid.truncation + 1:  # ducc0 silently cuts m otherwise
+        if grid.nlon < 2 * grid.truncation + 1:  # ducc0 silently cuts m otherwise
             raise ValueError(f"nlon = {grid.nlon} too small for T{grid.truncation}")
         self.grid = grid
         self.radius_m = float(radius_m)
