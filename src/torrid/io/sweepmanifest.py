@@ -15,7 +15,7 @@ import tempfile
 from pathlib import Path
 
 import torrid
-from torrid.io.sweepfile import SweepPoint, SweepSpec
+from torrid.io.sweepspec import SweepPoint, SweepSpec
 
 MANIFEST_NAME = "sweep.json"
 FORMAT = 1
@@ -94,7 +94,8 @@ def read_manifest(folder: str | os.PathLike) -> dict:
         data = json.loads(path.read_text(encoding="utf-8"))
         ok = isinstance(data, dict) and {"torrid_sweep", "dimensions", "points"} <= set(data)
     except (OSError, UnicodeDecodeError, ValueError) as err:
-        raise SweepFolderError(f"{path}: unreadable sweep manifest ({type(err).__name__})") from None
+        raise SweepFolderError(f"{path}: unreadable sweep manifest "
+                               f"({type(err).__name__})") from None
     if not ok:
         raise SweepFolderError(f"{path}: not a torrid sweep manifest")
     return data

@@ -1,6 +1,6 @@
 """The sweep runner: every point of a sweep to its run file, in parallel, resumably.
 
-:func:`run_sweep` takes a validated :class:`torrid.io.sweepfile.SweepSpec` and
+:func:`run_sweep` takes a validated :class:`torrid.io.sweepspec.SweepSpec` and
 
 1. writes the manifest (``<folder>/sweep.json``) and a record file for each point whose
    configuration does not validate (status failed, the validation error as the reason);
@@ -30,7 +30,7 @@ from pathlib import Path
 from tqdm.auto import tqdm
 
 from torrid.io.pointfile import FAILED, FINISHED, canonical_json, read_point, write_failure_record
-from torrid.io.sweepfile import SweepPoint, SweepSpec
+from torrid.io.sweepspec import SweepPoint, SweepSpec
 from torrid.io.sweepmanifest import manifest_data, write_manifest
 from torrid.workflow import collect
 from torrid.workflow.sweep_task import THREAD_VARIABLES, init_worker, run_point

@@ -58,10 +58,8 @@ def run_point(config_json: str, path: str) -> dict:
     import socket
     import time
 
-    from torrid.api import run
     from torrid.io.config import ConfigError, ModelConfig
     from torrid.io.pointfile import write_failure_record
-    from torrid.workflow.driver import RunFailedError
     from torrid.workflow.restart import RestartStore
 
     data = json.loads(config_json)
@@ -73,23 +71,38 @@ def run_point(config_json: str, path: str) -> dict:
         write_failure_record(path, data, reason, overwrite=True)
         return _result(path, "failed", reason, start, socket.gethostname())
     store = RestartStore(path)
-    resume = store.exists()  # a point killed mid-run continues from its restart (bit for bit)
+    try:
+        status, reason = write_run(config, path, store)
+    except ConfigError as err:  # found only when the model is built
+        status, reason = "failed", f"invalid configuration: {err}"
+        write_failure_record(path, data, reason, overwrite=True)
+    _remove_restart(store)  # the run file is the result; restarts would double the disk use
+    return _result(path, status, reason, start, socket.gethostname())
+
+
+def write_run(config, path: str, store) -> tuple[str, str]:
+    """Run ``config`` into the run file ``path`` as :func:`torrid.run` does (a blown-up run's
+    file has status failed and its last good state); a point killed mid-run continues from its
+    restart data (bit for bit). Returns the run's status and reason."""
+    from torrid.io.config import ConfigError
+    from torrid.io.runfile import write_atomic
+    from torrid.workflow.driver import RunFailedError, run_config
+
+    resume = store.exists()
     try:
         try:
-            ds = run(config, path, overwrite=True, resume=resume)
+            ds, summary = run_config(config, progress=False, restart=store, resume=resume)
         except ConfigError:
             if not resume:
                 raise
-            ds = run(config, path, overwrite=True)  # restart data unusable: start afresh
-        status, reason = ds.attrs["run_status"], ds.attrs["run_status_reason"]
-    except RunFailedError as err:
-        status, reason = "failed", str(err)
-    except ConfigError as err:  # found only when the model is built
-        reason = f"invalid configuration: {err}"
-        write_failure_record(path, data, reason, overwrite=True)
-        status = "failed"
-    _remove_restart(store)  # the run file is the result; restarts would double the disk use
-    return _result(path, status, reason, start, socket.gethostname())
+            store.clear()  # restart data unusable: start afresh
+            ds, summary = run_config(config, progress=False, restart=store)
+    except RunFailedError as failure:
+        write_atomic(failure.dataset, path, overwrite=True)
+        return "failed", str(failure)
+    ds.attrs["summary"] = summary.line(config.case.name if config.case else "planet")
+    write_atomic(ds, path, overwrite=True)
+    return ds.attrs["run_status"], ds.attrs["run_status_reason"]
 
 
 def _remove_restart(store) -> None:

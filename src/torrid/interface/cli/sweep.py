@@ -25,7 +25,7 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
                     "reason, and a point that blows up does not stop the others. At the end "
                     "the sweep table <folder>/<name>-table.nc is rebuilt from the folder "
                     "(always replaced: it is derived from the point files, which are never "
-                    "replaced); 'torrid collect FOLDER' rebuilds it on its own.", width=88),
+                    "replaced); 'torrid collect FOLDER' rebuilds it on its own.", width=79),
         epilog="sweep file: the sections of a run file as the base configuration, and\n"
                "  [sweep]\n"
                "  name = \"grid\"              # optional, default: the file's stem\n"
@@ -34,9 +34,9 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
                "  key = \"atmosphere.radiative_timescale_days\"\n"
                "  log_range = [0.1, 10.0, 5]  # or values = [...], or range = [start, stop, n]\n"
                "  zip = \"g\"                  # optional: axes of one group advance together\n"
-               "\ncluster: start 'dask scheduler' on one machine and "
-               "'dask worker tcp://HOST:8786 --nthreads 1'\n"
-               "on each machine (torrid installed, the sweep folder on a shared file system),\n"
+               "\ncluster: start 'dask scheduler' on one machine, and on each machine\n"
+               "(torrid installed, the sweep folder on a file system all of them share)\n"
+               "  dask worker tcp://HOST:8786 --nthreads 1      # one per core\n"
                "then: torrid sweep FILE.toml --scheduler tcp://HOST:8786",
         formatter_class=argparse.RawDescriptionHelpFormatter,
     )

@@ -1,0 +1,117 @@
+"""Sweep throughput: points per hour with 1 and 2 local workers, parallel efficiency, and the
+overhead of running the same sweep on a dask LocalCluster (2 worker processes, 1 thread each).
+
+Every point costs the same: T42, a fixed number of days with a fixed time step and no
+steady-state stop; the points differ in tau_rad. Each sweep starts in a fresh folder and its
+wall time includes starting the local worker processes (what a user waits for). Dask is timed
+twice: on a cluster started once and kept (its workers stay warm, like a user's running
+cluster), and as a fresh cluster plus one sweep (cold, start-up included). Efficiency =
+rate(2) / (2 rate(1)), from the medians and from the fastest runs (the least disturbed on a
+shared machine).
+
+    python benchmarks/bench_sweep.py
+    python benchmarks/bench_sweep.py --points 8 --days 20 --repeats 3
+"""
+
+from __future__ import annotations
+
+import argparse
+import os
+import statistics
+import tempfile
+import time
+from pathlib import Path
+
+from torrid.io.sweepfile import parse_sweep
+from torrid.workflow.sweep import run_sweep
+
+
+def sweep_spec(folder: Path, points: int, days: float, truncation: int):
+    """A tau_rad sweep of ``points`` equal-cost points."""
+    return parse_sweep({
+        "numerics": {"truncation": truncation, "time_step_s": 500.0},
+        "run": {"days": days, "stop_at_steady_state": False, "output_interval_days": 1.0},
+        "sweep": {"name": "bench", "axis": [
+            {"key": "atmosphere.radiative_timescale_days",
+             "log_range": [0.1, 10.0, points]}]},
+    }, "bench.toml", folder=folder)
+
+
+def timed_sweep(args, **where) -> float:
+    with tempfile.TemporaryDirectory(prefix="bench-sweep-") as tmp:
+        spec = sweep_spec(Path(tmp) / "bench", args.points, args.days, args.truncation)
+        start = time.perf_counter()
+        outcome = run_sweep(spec, progress=False, **where)
+        wall = time.perf_counter() - start
+    if outcome.counts["complete"] != args.points:
+        raise RuntimeError(f"benchmark sweep did not complete: {outcome.counts}")
+    return wall
+
+
+def load() -> str:
+    return "load average " + ", ".join(f"{x:.2f}" for x in os.getloadavg())
+
+
+def cold_dask_sweep(args) -> float:
+    """A fresh LocalCluster (2 processes, 1 thread each) and one sweep on it, timed together."""
+    import distributed
+
+    start = time.perf_counter()
+    with distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                  dashboard_address=":0") as cluster:
+        timed_sweep(args, scheduler=cluster.scheduler_address)
+    return time.perf_counter() - start
+
+
+def main() -> None:
+    parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    parser.add_argument("--points", type=int, default=4)
+    parser.add_argument("--days", type=float, default=20.0)
+    parser.add_argument("--truncation", type=int, default=42)
+    parser.add_argument("--repeats", type=int, default=3)
+    parser.add_argument("--no-dask", action="store_true", help="skip the dask measurements")
+    args = parser.parse_args()
+    print(f"sweep of {args.points} points, T{args.truncation}, {args.days:g} days each, "
+          f"{args.repeats} repeats; {os.cpu_count()} cores; {load()}")
+    timed_sweep(args, workers=1)  # warm-up: numba cache, imports, file-system caches
+
+    cluster = None
+    if not args.no_dask:
+        import distributed
+
+        cluster = distributed.LocalCluster(n_workers=2, threads_per_worker=1, processes=True,
+                                           dashboard_address=":0")
+        timed_sweep(args, scheduler=cluster.scheduler_address)  # warm the workers
+    walls = {"local, 1 worker": [], "local, 2 workers": [], "dask, 2 warm workers": [],
+             "dask, cold cluster": []}
+    try:
+        for _ in range(args.repeats):  # interleaved, so load changes hit every variant
+            walls["local, 1 worker"].append(timed_sweep(args, workers=1))
+            walls["local, 2 workers"].append(timed_sweep(args, workers=2))
+            if cluster is not None:
+                walls["dask, 2 warm workers"].append(
+                    timed_sweep(args, scheduler=cluster.scheduler_address))
+                walls["dask, cold cluster"].append(cold_dask_sweep(args))
+    finally:
+        if cluster is not None:
+            cluster.close()
+    median = {k: statistics.median(v) for k, v in walls.items() if v}
+    best = {k: min(v) for k, v in walls.items() if v}
+    for name, wall in median.items():
+        runs = ", ".join(f"{w:.1f}" for w in walls[name])
+        print(f"{name:21s}: median {wall:6.1f} s wall, {3600 * args.points / wall:6.0f} "
+              f"points/hour (runs: {runs} s)")
+    for label, t in (("medians", median), ("fastest runs", best)):
+        efficiency = t["local, 1 worker"] / (2 * t["local, 2 workers"])
+        line = f"{label:12s}: parallel efficiency on 2 workers {efficiency:.2f}"
+        if "dask, 2 warm workers" in t:
+            warm = t["dask, 2 warm workers"] / t["local, 2 workers"] - 1
+            cold = t["dask, cold cluster"] / t["local, 2 workers"] - 1
+            line += (f"; dask against the local runner (2 workers): warm workers "
+                     f"{100 * warm:+.0f} %, cold cluster incl. its start-up {100 * cold:+.0f} %")
+        print(line)
+    print(f"after: {load()}")
+
+
+if __name__ == "__main__":
+    main()
