@@ -20,14 +20,15 @@ def test_every_example_is_covered():
     assert sorted(p.name for p in EXAMPLES.glob("*.toml")) == sorted(TOML_EXAMPLES)
 
 
-TOML_EXAMPLES = ["default_planet.toml", "eccentric.toml", "strong_drag.toml"]
+TOML_EXAMPLES = ["default_planet.toml", "eccentric.toml", "strong_drag.toml", "tau_sweep.toml"]
+RUN_EXAMPLES = [name for name in TOML_EXAMPLES if name != "tau_sweep.toml"]
 
 
 def test_default_planet_example_is_the_built_in_default():
     assert torrid.load_config(EXAMPLES / "default_planet.toml") == torrid.ModelConfig()
 
 
-@pytest.mark.parametrize("name", TOML_EXAMPLES)
+@pytest.mark.parametrize("name", RUN_EXAMPLES)
 def test_toml_example_runs(name, tmp_path, capsys):
     out = tmp_path / name.replace(".toml", ".nc")
     argv = ["run", str(EXAMPLES / name), "-o", str(out), "-q"]
@@ -85,3 +86,20 @@ def test_demo_runs_the_whole_chain_briefly(tmp_path, capsys):
     assert files["recovered"]  # 15 ppm noise on 60 phases singles out the generating point
     with pytest.raises(FileExistsError, match="--overwrite"):
         run_demo(tmp_path / "demo", workers=1, sweep_text=SMALL_DEMO, progress=False)
+
+
+def test_sweep_example_is_valid_and_runs_briefly(tmp_path, capsys):
+    from torrid.io.sweepfile import load_sweep
+
+    spec = load_sweep(EXAMPLES / "tau_sweep.toml", folder=tmp_path / "s")
+    assert spec.shape == (5, 4) and len(spec.points()) == 20
+    text = (EXAMPLES / "tau_sweep.toml").read_text()
+    brief = text.replace("truncation = 21", "truncation = 10").replace(
+        "days = 200.0", "days = 2.0").replace("log_range = [0.03, 30.0, 5]",
+                                              "values = [0.1, 1.0]").replace(
+        "values = [inf, 10.0, 1.0, 0.1]", "values = [inf, 1.0]")
+    small = tmp_path / "small.toml"
+    small.write_text(brief)
+    assert main(["sweep", str(small), "--folder", str(tmp_path / "s"), "--workers", "1",
+                 "-q"]) == 0
+    assert "4 done" in capsys.readouterr().out

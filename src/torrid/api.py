@@ -15,14 +15,12 @@ import os
 import xarray as xr
 
 from torrid.io.config import CaseConfig, ModelConfig, NumericsConfig, PlanetConfig, RunConfig
-from torrid.io.runfile import check_writable, write_atomic
 from torrid.io.tomlfile import load_config
 from torrid.physics.cases import CASES
 from torrid.io.config import ConfigError
 from torrid.io.observer import ObserverSettings
 from torrid.workflow.phase import phase_curve
-from torrid.workflow.driver import RunFailedError, run_config
-from torrid.workflow.restart import RestartStore
+from torrid.workflow.driver import run_config, run_to_file
 
 __all__ = ["build_case_config", "run", "load_config", "ModelConfig", "phase_curve",
            "ObserverSettings"]
@@ -85,19 +83,10 @@ def run(config: ModelConfig, output: str | os.PathLike | None = None, *,
     With ``output``, restart data are kept beside it (``.NAME.nc.restart/``, see
     :mod:`torrid.workflow.restart`); ``resume=True`` continues an interrupted run from them.
     """
-    store = None
     if output is not None:
-        check_writable(output, overwrite)
-        store = RestartStore(output)
-    elif resume:
+        return run_to_file(config, output, overwrite=overwrite, progress=progress,
+                           resume=resume)
+    if resume:
         raise ConfigError("resume: needs the run file name (output) to find its restart data")
-    try:
-        ds, summary = run_config(config, progress=progress, restart=store, resume=resume)
-    except RunFailedError as failure:  # keep what was computed: status "failed" in the file
-        if output is not None:
-            write_atomic(failure.dataset, output, overwrite=overwrite)
-        raise
-    ds.attrs["summary"] = summary.line(config.case.name if config.case else "planet")
-    if output is not None:
-        write_atomic(ds, output, overwrite=overwrite)
+    ds, _ = run_config(config, progress=progress)
     return ds

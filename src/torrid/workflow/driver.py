@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import math
+import os
 import time
 from dataclasses import dataclass, field
 
@@ -11,7 +12,7 @@ import xarray as xr
 from tqdm.auto import tqdm
 
 from torrid.io.config import SECONDS_PER_DAY, ModelConfig
-from torrid.io.runfile import build_dataset
+from torrid.io.runfile import build_dataset, check_writable, write_atomic
 from torrid.physics.timestepping import COURANT_LIMIT, IMEXStepper
 from torrid.workflow.health import check_step
 from torrid.workflow.output import (RunSummary, append_snapshot, output_coordinates,
@@ -185,6 +186,7 @@ def integrate(model: Model, progress: bool = True, label: str = "",
         attrs.update(planet_attrs(model, run.times_days, run.series, criterion,
                                   config.run.stop_at_steady_state, steady_day))
     series = {k: v for k, v in run.series.items() if k != "max_speed"}
+    attrs["summary"] = summary.line(model.label)
     ds = build_dataset(run.times_days, lat, lon, series, static, attrs)
     if problem is not None:
         raise RunFailedError(problem.message(), ds)
@@ -208,5 +210,24 @@ def run_config(config: ModelConfig, progress: bool = True, restart: RestartStore
                resume: bool = False) -> tuple[xr.Dataset, RunSummary]:
     """Build and integrate the model of ``config`` (see :func:`integrate`)."""
     return integrate(build_model(config), progress=progress, restart=restart, resume=resume)
+
+
+def run_to_file(config: ModelConfig, output: str | os.PathLike, *, overwrite: bool = False,
+                progress: bool = False, resume: bool = False) -> xr.Dataset:
+    """Run ``config`` into the run file ``output``, with its restart data beside it.
+
+    An existing ``output`` is refused before any work unless ``overwrite``. A run that fails
+    its health checks still writes ``output`` (status failed, the last good state) and then
+    raises :class:`RunFailedError`; ``resume`` continues from the restart data.
+    """
+    check_writable(output, overwrite)
+    store = RestartStore(output)
+    try:
+        ds, _ = run_config(config, progress=progress, restart=store, resume=resume)
+    except RunFailedError as failure:
+        write_atomic(failure.dataset, output, overwrite=overwrite)
+        raise
+    write_atomic(ds, output, overwrite=overwrite)
+    return ds
 
 

@@ -85,23 +85,19 @@ def write_run(config, path: str, store) -> tuple[str, str]:
     file has status failed and its last good state); a point killed mid-run continues from its
     restart data (bit for bit). Returns the run's status and reason."""
     from torrid.io.config import ConfigError
-    from torrid.io.runfile import write_atomic
-    from torrid.workflow.driver import RunFailedError, run_config
+    from torrid.workflow.driver import RunFailedError, run_to_file
 
     resume = store.exists()
     try:
         try:
-            ds, summary = run_config(config, progress=False, restart=store, resume=resume)
+            ds = run_to_file(config, path, overwrite=True, resume=resume)
         except ConfigError:
             if not resume:
                 raise
             store.clear()  # restart data unusable: start afresh
-            ds, summary = run_config(config, progress=False, restart=store)
+            ds = run_to_file(config, path, overwrite=True)
     except RunFailedError as failure:
-        write_atomic(failure.dataset, path, overwrite=True)
         return "failed", str(failure)
-    ds.attrs["summary"] = summary.line(config.case.name if config.case else "planet")
-    write_atomic(ds, path, overwrite=True)
     return ds.attrs["run_status"], ds.attrs["run_status_reason"]
 
 

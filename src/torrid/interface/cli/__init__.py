@@ -61,7 +61,10 @@ def main(argv: list[str] | None = None) -> int:
         print(f"torrid: {err}", file=sys.stderr)
         return 3
     except KeyboardInterrupt:
-        print("torrid: interrupted", file=sys.stderr)
+        hint = {"sweep": "; rerun the same command to resume (finished points are kept)",
+                "run": "; rerun with --resume to continue from the latest restart",
+                "demo": "; rerun to resume (finished runs are kept)"}.get(args.command, "")
+        print(f"torrid: interrupted{hint}", file=sys.stderr)
         return 130
 
 
