@@ -14,7 +14,7 @@ from tqdm.auto import tqdm
 from torrid.io.config import SECONDS_PER_DAY, ModelConfig
 from torrid.io.runfile import build_dataset, check_writable, write_atomic
 from torrid.physics.timestepping import COURANT_LIMIT, IMEXStepper
-from torrid.workflow.health import check_step
+from torrid.workflow.health import HealthProblem, check_step
 from torrid.workflow.output import (RunSummary, append_snapshot, output_coordinates,
                                     planet_attrs, relative_change, run_attrs, snapshot,
                                     to_output_grid)
@@ -87,6 +87,38 @@ def _save_restart(model: Model, store: RestartStore, run: _Progress) -> None:
     }, run.state)
 
 
+def _advance_interval(model: Model, run: _Progress, interval_s: float,
+                      bar) -> tuple[HealthProblem | None, float]:
+    """Step ``run`` through its next output interval (health-checking every step, shortening
+    an automatic step whose Courant number grows too large). Returns the first problem (or
+    None) and the time (s) of the state reached: the interval's end, or the last good step."""
+    base_s = run.outputs_done * interval_s
+    segment_s, done, steps = base_s, 0, run.steps_per_output  # steps of this segment
+    changed = False
+    while done < steps:
+        time_s = segment_s + done * run.dt
+        new_state = run.stepper.step(run.state, time_s)
+        run.steps += 1
+        problem, courant = check_step(model, new_state, (time_s + run.dt) / SECONDS_PER_DAY,
+                                      run.dt)
+        if problem is not None:
+            return problem, time_s  # run.state is still the last good state
+        run.state = new_state
+        done += 1
+        bar.update(run.dt / SECONDS_PER_DAY)
+        now_s = segment_s + done * run.dt
+        rest_s = base_s + interval_s - now_s
+        if done < steps and _shorter_step(model, run, courant, rest_s, now_s):
+            segment_s, done, changed = now_s, 0, True
+            steps = round(rest_s / run.dt)
+    run.outputs_done += 1
+    if changed:  # the step was shortened: the next intervals use it, dividing them exactly
+        run.steps_per_output = max(1, math.ceil(interval_s / run.dt - 1e-9))
+        run.stepper = IMEXStepper(model.dynamics, model.linear,
+                                  interval_s / run.steps_per_output, run.state.shape)
+    return None, run.outputs_done * interval_s
+
+
 def integrate(model: Model, progress: bool = True, label: str = "",
               restart: RestartStore | None = None,
               resume: bool = False) -> tuple[xr.Dataset, RunSummary]:
@@ -126,34 +158,7 @@ def integrate(model: Model, progress: bool = True, label: str = "",
     start = time.perf_counter()
     problem = None
     while run.outputs_done < n_outputs and problem is None:
-        base_s = run.outputs_done * interval_s
-        segment_s, done, steps = base_s, 0, run.steps_per_output  # steps of this segment
-        changed = False
-        while done < steps:
-            time_s = segment_s + done * run.dt
-            new_state = run.stepper.step(run.state, time_s)
-            run.steps += 1
-            problem, courant = check_step(model, new_state, (time_s + run.dt) / SECONDS_PER_DAY,
-                                          run.dt)
-            if problem is not None:
-                break
-            run.state = new_state
-            done += 1
-            bar.update(run.dt / SECONDS_PER_DAY)
-            now_s = segment_s + done * run.dt
-            rest_s = base_s + interval_s - now_s
-            if done < steps and _shorter_step(model, run, courant, rest_s, now_s):
-                segment_s, done, changed = now_s, 0, True
-                steps = round(rest_s / run.dt)
-        if problem is not None:  # keep the last good state as the final output
-            time_s = segment_s + done * run.dt
-        else:
-            run.outputs_done += 1
-            time_s = run.outputs_done * interval_s
-            if changed:  # the step was shortened: the next intervals use it, dividing them
-                run.steps_per_output = max(1, math.ceil(interval_s / run.dt - 1e-9))
-                run.stepper = IMEXStepper(model.dynamics, model.linear,
-                                          interval_s / run.steps_per_output, run.state.shape)
+        problem, time_s = _advance_interval(model, run, interval_s, bar)
         run.times_days.append(time_s / SECONDS_PER_DAY)
         taken = snapshot(model, run.state, time_s)
         append_snapshot(run.series, taken)

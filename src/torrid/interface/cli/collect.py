@@ -37,6 +37,12 @@ def handle(args: argparse.Namespace) -> int:
     check_writable(output, args.overwrite)  # refuse before reading every point
     table = collect_sweep(args.folder, maps=args.maps)
     write_table(table, output, overwrite=args.overwrite)
+    status = table["run_status"].values.ravel()
+    for reason, state in zip(table["run_status_reason"].values.ravel(), status):
+        if state == "missing" and ("unreadable" in reason or "no valid" in reason
+                                   or "another configuration" in reason):
+            print(f"torrid collect: {args.folder}/{reason}; shown as missing (rerun the sweep "
+                  "to redo the point)", file=sys.stderr)
     a = table.attrs
     print(f"sweep {a['torrid_sweep']}: {a['points_total']} points: "
           f"{a['points_complete'] + a['points_steady']} done, {a['points_failed']} failed, "
