@@ -14,9 +14,9 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
-import xarray as xr
 
 from torrid.io.config import ConfigError
+from torrid.io.runfile import load_netcdf
 
 
 @dataclass(frozen=True, eq=False)
@@ -35,13 +35,7 @@ def read_initial_fields(path: str | os.PathLike) -> InitialFields:
     """Read initial fields (format in the module docstring); one-line ConfigError naming the
     file if it is missing, unreadable or lacks what is needed."""
     path = Path(path)
-    if not path.is_file():
-        raise ConfigError(f"run.initial_fields = {str(path)!r}: no such file")
-    try:
-        with xr.open_dataset(path) as ds:
-            ds = ds.load()
-    except Exception as err:  # noqa: BLE001 - any reader failure means the same to the user
-        raise ConfigError(f"{path}: not a readable netCDF file ({type(err).__name__})") from None
+    ds = load_netcdf(path, "file of initial fields (run.initial_fields)", ConfigError)
     missing = [n for n in ("h", "u", "v", "lat", "lon") if n not in ds.variables]
     if missing:
         raise ConfigError(f"{path}: initial fields need h, u, v on lat, lon (missing "

@@ -80,6 +80,19 @@ class RunFileError(ValueError):
     """A file given as a run file is missing, unreadable or not a torrid run file."""
 
 
+def load_netcdf(path: str | os.PathLike, what: str, error: type[Exception]) -> xr.Dataset:
+    """Open a netCDF file fully into memory; a missing or unreadable file raises ``error``
+    with one line naming the file and ``what`` it should have been."""
+    path = Path(path)
+    if not path.is_file():
+        raise error(f"{path}: no such {what}")
+    try:
+        with xr.open_dataset(path, engine="netcdf4") as ds:
+            return ds.load()
+    except Exception as err:  # noqa: BLE001 - any reader failure means the same to the user
+        raise error(f"{path}: not a readable netCDF {what} ({type(err).__name__})") from None
+
+
 def read_run(path: str | os.PathLike) -> xr.Dataset:
     """Open a run file fully into memory (the file is closed afterwards).
 
@@ -88,14 +101,7 @@ def read_run(path: str | os.PathLike) -> xr.Dataset:
     RunFileError
         One line naming the file if it is missing, unreadable or lacks the run variables.
     """
-    path = Path(path)
-    if not path.is_file():
-        raise RunFileError(f"{path}: no such run file")
-    try:
-        with xr.open_dataset(path, engine="netcdf4") as ds:
-            ds = ds.load()
-    except Exception as err:  # noqa: BLE001 - any reader failure means the same to the user
-        raise RunFileError(f"{path}: not a readable netCDF run file ({type(err).__name__})") from None
+    ds = load_netcdf(path, "run file", RunFileError)
     missing = [name for name in ("h", "u", "v") if name not in ds]
     if missing:
         raise RunFileError(f"{path}: not a torrid run file (missing {', '.join(missing)})")

@@ -209,7 +209,7 @@ def fit_table(observed_path, table_path, settings, *, output=None, overwrite: bo
 
     from torrid.io.observed import read_observed_csv
     from torrid.io.provenance import provenance_attrs
-    from torrid.io.runfile import write_atomic
+    from torrid.io.runfile import load_netcdf, write_atomic
     from torrid.workflow.phase import phase_curve
 
     from torrid.io.observer import ObserverSettings
@@ -217,14 +217,7 @@ def fit_table(observed_path, table_path, settings, *, output=None, overwrite: bo
     settings = settings or ObserverSettings()
     observed = read_observed_csv(observed_path)
     table_path = Path(table_path)
-    if not table_path.is_file():
-        raise FitError(f"{table_path}: no such sweep table")
-    try:
-        with xr.open_dataset(table_path) as ds:
-            table = ds.load()
-    except Exception as err:  # noqa: BLE001 - any reader failure means the same to the user
-        raise FitError(f"{table_path}: not a readable netCDF sweep table "
-                       f"({type(err).__name__})") from None
+    table = load_netcdf(table_path, "sweep table", FitError)
     if "h" not in table:
         raise FitError(f"{table_path}: the table has no maps; rebuild it with "
                        "'torrid collect FOLDER --maps'")
