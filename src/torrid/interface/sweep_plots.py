@@ -15,6 +15,7 @@ from pathlib import Path
 import numpy as np
 import xarray as xr
 
+from torrid.io.runfile import refuse_existing
 from torrid.interface.plots import plt, save_figure
 
 #: (variable, label, factor) of the panels of :func:`plot_sweep_diagnostics`.
@@ -235,9 +236,7 @@ def plot_sweep_file(path: str | os.PathLike, output: str | os.PathLike | None = 
     with xr.open_dataset(path, engine="netcdf4") as ds:
         table = ds.load()
     images = [image] + ([image.with_name(f"{image.stem}-maps.png")] if "h" in table else [])
-    for target in images:
-        if target.exists() and not overwrite:
-            raise FileExistsError(f"{target} exists: choose another name or pass --overwrite")
+    refuse_existing(images, overwrite)
     plot_sweep_diagnostics(table, images[0], overwrite=overwrite)
     if len(images) > 1:
         plot_sweep_maps(table, images[1], overwrite=overwrite)

@@ -29,6 +29,14 @@ def check_writable(path: str | os.PathLike, overwrite: bool) -> Path:
     return path
 
 
+def refuse_existing(paths, overwrite: bool) -> None:
+    """Check, before any work, that none of ``paths`` (None entries skipped) exists unless
+    ``overwrite``; make their folders."""
+    for path in paths:
+        if path is not None:
+            check_writable(path, overwrite)
+
+
 def build_dataset(times_days, latitude_deg, longitude_deg, series: dict[str, list],
                   static: dict[str, np.ndarray], attrs: dict) -> xr.Dataset:
     """Assemble a run dataset; every variable gets its attributes from the table.

@@ -6,6 +6,8 @@ import argparse
 import sys
 from pathlib import Path
 
+from torrid.io.runfile import refuse_existing
+
 from torrid.interface.cli.observer_options import add_observer_options, build_settings
 
 
@@ -41,9 +43,7 @@ def handle(args: argparse.Namespace) -> int:
     settings = build_settings(args)
     output = args.output or args.table.with_name(f"{args.table.stem}-fit.nc")
     image = output.with_suffix(".png")
-    for path in (output, image):
-        if path.exists() and not args.overwrite:
-            raise FileExistsError(f"{path} exists: choose another name or pass --overwrite")
+    refuse_existing((output, image), args.overwrite)
     fit = fit_table(args.observed, args.table, settings, offset_deg=args.offset,
                     offset_error_deg=args.offset_error, amplitude_ppm=args.amplitude,
                     amplitude_error_ppm=args.amplitude_error, output=output,

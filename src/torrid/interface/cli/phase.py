@@ -6,6 +6,8 @@ import argparse
 import sys
 from pathlib import Path
 
+from torrid.io.runfile import refuse_existing
+
 from torrid.interface.cli.observer_options import add_observer_options, build_settings
 
 
@@ -43,9 +45,7 @@ def handle(args: argparse.Namespace) -> int:
     output = args.output or args.run_file.with_name(f"{args.run_file.stem}-phase.nc")
     image = output.with_suffix(".png")
     table = output.with_suffix(".csv") if args.csv else None
-    for path in (output, image, table):  # refuse before any work
-        if path is not None and path.exists() and not args.overwrite:
-            raise FileExistsError(f"{path} exists: choose another name or pass --overwrite")
+    refuse_existing((output, image, table), args.overwrite)
     ds = read_run(args.run_file)
     pc = phase_curve(ds, settings, source=str(args.run_file))
     write_phase_netcdf(pc, output, overwrite=args.overwrite)

@@ -6,6 +6,8 @@ import argparse
 import sys
 from pathlib import Path
 
+from torrid.io.runfile import refuse_existing
+
 
 def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser(
@@ -53,9 +55,7 @@ def handle(args: argparse.Namespace) -> int:
         return 0
     image = args.output or stem.with_suffix(".png")
     spinup = image.with_name(f"{image.stem}-spinup.png")
-    for path in (image, spinup):  # refuse before drawing anything
-        if path.exists() and not args.overwrite:
-            raise FileExistsError(f"{path} exists: choose another name or pass --overwrite")
+    refuse_existing((image, spinup), args.overwrite)
     plots.plot_planet_map(ds, image, overwrite=args.overwrite, time_days=args.time)
     plots.plot_spinup(ds, spinup, overwrite=args.overwrite)
     print(f"wrote {image} and {spinup}", file=sys.stdout)
