@@ -102,3 +102,24 @@ def test_observed_csv_round_trip_and_errors(tmp_path):
             read_observed_csv(bad)
         assert fragment in str(err.value)
         assert "bad.csv" in str(err.value) and "\n" not in str(err.value)
+
+
+def test_python_api_sweep_then_fit(tmp_path):
+    """The Python API mirrors the CLI: torrid.sweep returns the table, torrid.fit fits it."""
+    import torrid
+
+    sweep_file = tmp_path / "api.toml"
+    sweep_file.write_text("[numerics]\ntruncation = 10\n[run]\ndays = 3.0\n"
+                          "stop_at_steady_state = false\n[sweep]\nname = \"api\"\n"
+                          "[[sweep.axis]]\nkey = \"atmosphere.radiative_timescale_days\"\n"
+                          "log_range = [0.1, 10.0, 3]\n[[sweep.axis]]\n"
+                          "key = \"atmosphere.drag_timescale_days\"\nvalues = [1.0, 10.0]\n")
+    table = torrid.sweep(sweep_file, workers=1, folder=tmp_path / "api", maps=True)
+    assert table.sizes["radiative_timescale_days"] == 3 and "h" in table
+    curves = table.torrid.phase_curve()
+    observed = synthetic_observation(curves.flux_ratio.isel(radiative_timescale_days=1,
+                                                            drag_timescale_days=0), 40, 5.0)
+    write_observed_csv(observed, tmp_path / "obs.csv")
+    fit = torrid.fit(tmp_path / "obs.csv", tmp_path / "api" / "api-table.nc")
+    assert fit.attrs["best_radiative_timescale_days"] == pytest.approx(1.0)
+    assert fit.attrs["best_drag_timescale_days"] == 1.0

@@ -19,7 +19,8 @@ class TorridWarning(UserWarning):
 
 from torrid.interface import accessor as _accessor  # noqa: E402,F401  (registers ds.torrid)
 
-_API = ("build_case_config", "run", "ModelConfig", "load_config", "phase_curve", "ObserverSettings")
+_API = ("build_case_config", "run", "ModelConfig", "load_config", "phase_curve", "ObserverSettings",
+        "sweep", "fit")
 __all__ = ["__version__", "TorridWarning", *_API]
 
 

@@ -23,7 +23,7 @@ from torrid.workflow.phase import phase_curve
 from torrid.workflow.driver import run_config, run_to_file
 
 __all__ = ["build_case_config", "run", "load_config", "ModelConfig", "phase_curve",
-           "ObserverSettings"]
+           "ObserverSettings", "sweep", "fit"]
 
 
 def build_case_config(case: str = "williamson6", *, truncation: int = 42,
@@ -90,3 +90,38 @@ def run(config: ModelConfig, output: str | os.PathLike | None = None, *,
         raise ConfigError("resume: needs the run file name (output) to find its restart data")
     ds, _ = run_config(config, progress=progress)
     return ds
+
+
+def sweep(sweep_file: str | os.PathLike, *, workers: int | None = None,
+          scheduler: str | None = None, folder: str | os.PathLike | None = None,
+          maps: bool = False, progress: bool = False) -> xr.Dataset:
+    """Run a sweep file (resuming if it ran before) and return its sweep table.
+
+    Parameters
+    ----------
+    sweep_file : path
+        A sweep TOML file (see the README, "Sweeps").
+    workers, scheduler : optional
+        Local worker processes (default: all cores), or a dask.distributed scheduler address.
+    folder : path, optional
+        Instead of the file's ``[sweep] folder``.
+    maps : bool
+        Put the final h, u, v maps into the table (needed for phase curves and fits).
+    """
+    from torrid.io.sweepfile import load_sweep
+    from torrid.workflow.sweep import run_sweep
+
+    outcome = run_sweep(load_sweep(sweep_file, folder=folder), workers=workers,
+                        scheduler=scheduler, maps=maps, progress=progress)
+    with xr.open_dataset(outcome.table_path) as ds:
+        return ds.load()
+
+
+def fit(observed_csv: str | os.PathLike, table_path: str | os.PathLike,
+        settings: ObserverSettings | None = None, **comparison) -> xr.Dataset:
+    """Fit a measured phase curve (CSV: phase, flux ratio ppm, error ppm) with a sweep table
+    that has maps; ``comparison``: offset_deg, offset_error_deg, amplitude_ppm,
+    amplitude_error_ppm (see :func:`torrid.workflow.fit.fit_sweep`)."""
+    from torrid.workflow.fit import fit_table
+
+    return fit_table(observed_csv, table_path, settings, **comparison)
