@@ -65,3 +65,13 @@ def test_round_trip_through_plain_data():
 def test_time_step_longer_than_output_interval_is_refused():
     with pytest.raises(ConfigError, match="numerics.time_step_s"):
         ModelConfig(numerics=NumericsConfig(time_step_s=2 * 86400.0))
+
+
+def test_given_time_step_is_shortened_to_divide_the_output_interval():
+    from torrid.workflow.setup import build_model
+
+    config = torrid.build_case_config("williamson6", truncation=10, time_step_s=5000.0)
+    model = build_model(config)
+    assert model.dt == pytest.approx(86400 / 18) and model.steps_per_output == 18
+    exact = build_model(config.replace(numerics={"time_step_s": 600.0}))
+    assert exact.dt == 600.0 and exact.steps_per_output == 144

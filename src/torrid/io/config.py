@@ -101,7 +101,8 @@ class NumericsConfig:
     hyperdiffusion_order : int or None
         p in del^(2p) (>= 1; 4 means del^8); ``None`` takes the case's default.
     time_step_s : float or None
-        Time step (s); ``None`` chooses it from ``courant_number``.
+        Time step (s), shortened if needed to divide the output interval; ``None`` chooses it
+        from ``courant_number``.
     courant_number : float
         Advective Courant number |v|_max dt sqrt(N (N + 1)) / a for the automatic step.
     threads : int

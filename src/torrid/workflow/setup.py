@@ -103,15 +103,16 @@ def resolved_hyperdiffusion(config: ModelConfig, case: CaseSpec | None) -> tuple
 def choose_time_step(config: ModelConfig, max_speed_m_s: float) -> tuple[float, int]:
     """Time step (s) and steps per output interval.
 
-    A given ``time_step_s`` is used as is (outputs then fall on the nearest step); otherwise the
-    step of the configured Courant number is shortened to divide the output interval exactly.
+    The step (the given ``time_step_s``, or that of the configured Courant number) is shortened,
+    if needed, to divide the output interval exactly, so outputs fall on steps.
     """
     interval_s = config.run.output_interval_days * SECONDS_PER_DAY
     n = config.numerics
     if n.time_step_s is not None:
-        return n.time_step_s, max(1, round(interval_s / n.time_step_s))
-    dt = automatic_time_step(max(max_speed_m_s, 1e-3), config.planet.radius_m, n.truncation,
-                             n.courant_number)
+        dt = n.time_step_s
+    else:
+        dt = automatic_time_step(max(max_speed_m_s, 1e-3), config.planet.radius_m,
+                                 n.truncation, n.courant_number)
     steps = max(1, math.ceil(interval_s / dt - 1e-9))
     return interval_s / steps, steps
 
