@@ -24,10 +24,10 @@ from torrid.physics.diagnostics import (
     DIAGNOSTIC_VARIABLES,
     EQUATORIAL_BAND_HALF_WIDTH_DEG,
     HOTSPOT_RING_OVERSAMPLING,
-    equilibrium_thickness,
     planet_diagnostics,
 )
 from torrid.physics.fields import spectral_state
+from torrid.physics.forcing import equilibrium_thickness
 from torrid.physics.grid import SpectralGrid
 from torrid.physics.transforms import Transforms
 
@@ -369,3 +369,14 @@ def test_line_of_sight_sign_convention():
     for la, dl, u, v in rng.uniform(-3, 3, size=(20, 4)):
         assert los_velocity_away(la, dl, u, v) == pytest.approx(
             -(u * np.sin(dl) + v * np.sin(la) * np.cos(dl)), abs=1e-14)
+
+
+def test_angle_series_unwrap_across_undefined_values():
+    """Time means of hotspot offsets unwrap the 360-degree jump even across an undefined (NaN)
+    sample: 170, NaN, -170 is a 20-degree step, not a 340-degree one."""
+    from torrid.physics.curvefeatures import unwrap_degrees, wrap_degrees
+
+    out = unwrap_degrees([np.nan, 170.0, np.nan, -170.0, -160.0])
+    np.testing.assert_allclose(out[[1, 3, 4]], [170.0, 190.0, 200.0])
+    assert np.isnan(out[[0, 2]]).all()
+    assert float(wrap_degrees(180.0)) == -180.0 and float(wrap_degrees(-540.0)) == -180.0

@@ -95,7 +95,7 @@ def test_observed_csv_round_trip_and_errors(tmp_path):
     for text, fragment in [("phase,f,e\n0.1,100,5\n0.2,abc,5\n0.3,1,1\n", "line 3"),
                            ("0.1,100,5\n0.2,100,0\n0.3,1,1\n", "error = 0.0: must be > 0"),
                            ("0.1,100,5\n1.2,100,1\n0.3,1,1\n", "phase = 1.2: must be in [0, 1)"),
-                           ("0.1,100\n", "2 columns: expected 3"),
+                           ("0.1,100\n", "2 columns, expected 3"),
                            ("0.1,100,5\n", "need at least 3")]:
         bad.write_text(text)
         with pytest.raises(ObservedDataError) as err:

@@ -303,3 +303,23 @@ def test_pseudo_synchronous_substellar_circulation():
     near_peri = (t[:-1] % PERIOD_S < 0.05 * PERIOD_S)
     assert np.all(rate[near_peri] > 0)  # eastward just after periastron
     assert np.mean(rate) < 0  # westward on average
+
+
+def test_forcing_equilibrium_equals_the_published_profile():
+    """The forcing's cached, rotated form of h_eq equals the Showman & Polvani (2011) profile
+    H (1 + dH/H max(0, cos(lat) cos(lon - lon_sub))) at a moving substellar point."""
+    import torrid
+    from torrid.physics.forcing import equilibrium_thickness
+    from torrid.workflow.setup import build_model
+
+    model = build_model(torrid.load_config(
+        __import__("pathlib").Path(__file__).parents[1] / "examples" / "eccentric.toml"
+    ).replace(numerics={"truncation": 10}))
+    forcing, g = model.forcing, model.gravity_m_s2
+    lat, lon = model.grid.mesh()
+    for t in (0.0, 1.3e5, 2.9e5):
+        lon_sub, contrast = forcing.state_at(t)
+        expected = equilibrium_thickness(lat, lon, mean_thickness_m=forcing.mean_geopotential / g,
+                                         contrast=contrast, substellar_longitude_rad=lon_sub)
+        np.testing.assert_allclose(forcing.equilibrium(t) / g, expected, rtol=1e-14)
+        assert lon_sub != 0.0 or t == 0.0

@@ -33,10 +33,12 @@ def configurations(draw):
     return draw(st.one_of(st.just(data), values))
 
 
-def _accepted_or_one_line(call):
+def _accepted_or_one_line(call, errors=ConfigError):
+    """The call's result, or None if it raised one of ``errors`` with a one-line message (any
+    other exception escapes and fails the test)."""
     try:
         return call()
-    except ConfigError as err:
+    except errors as err:
         text = str(err)
         assert text and "\n" not in text
         return None
@@ -89,20 +91,12 @@ cells = st.one_of(st.sampled_from(["0.1", "0.5", "0.99", "1.0", "-1", "nan", "in
 csv_rows = st.lists(st.lists(cells, min_size=0, max_size=4).map(",".join), max_size=8)
 
 
-def _one_line_or_accepted(call, errors):
-    try:
-        return call()
-    except errors as err:
-        assert str(err) and "\n" not in str(err)
-        return None
-
-
 @settings(max_examples=300, deadline=None, suppress_health_check=[HealthCheck.function_scoped_fixture])
 @given(csv_rows)
 def test_random_observed_csv_files(tmp_path, rows):
     path = tmp_path / "observed.csv"
     path.write_bytes("\n".join(rows).encode("utf-8", errors="replace"))
-    curve = _one_line_or_accepted(lambda: read_observed_csv(path), ObservedDataError)
+    curve = _accepted_or_one_line(lambda: read_observed_csv(path), ObservedDataError)
     if curve is not None:
         assert curve.phase.size >= 3 and (curve.error_ppm > 0).all()
         assert ((curve.phase >= 0) & (curve.phase < 1)).all()
@@ -113,7 +107,7 @@ def test_random_observed_csv_files(tmp_path, rows):
 def test_random_response_files(tmp_path, rows):
     path = tmp_path / "response.csv"
     path.write_bytes("\n".join(rows).encode("utf-8", errors="replace"))
-    table = _one_line_or_accepted(lambda: read_response(path), ObserverError)
+    table = _accepted_or_one_line(lambda: read_response(path), ObserverError)
     if table is not None:
         wavelength, response = table
         assert (np.diff(wavelength) > 0).all() and (response >= 0).all()
@@ -128,6 +122,6 @@ def test_random_response_files(tmp_path, rows):
 def test_random_observer_sections(tmp_path, lines):
     path = tmp_path / "observer.toml"
     path.write_bytes("\n".join(lines).encode("utf-8", errors="replace"))
-    section = _one_line_or_accepted(lambda: read_observer_toml(path), (ObserverError, ConfigError))
+    section = _accepted_or_one_line(lambda: read_observer_toml(path), (ObserverError, ConfigError))
     if section is not None:
-        _one_line_or_accepted(lambda: ObserverSettings(**section), ObserverError)
+        _accepted_or_one_line(lambda: ObserverSettings(**section), ObserverError)

@@ -12,18 +12,17 @@ import matplotlib.pyplot as plt  # noqa: E402
 import numpy as np  # noqa: E402
 import xarray as xr  # noqa: E402
 
+from torrid.io.atomic import atomic_path  # noqa: E402
 from torrid.io.runfile import check_writable  # noqa: E402
 
 
 def save_figure(fig, path: str | os.PathLike, overwrite: bool = False) -> Path:
     """Save ``fig`` as PNG atomically (temporary name, then rename) and close it."""
     path = check_writable(path, overwrite)
-    tmp = path.with_name(f".{path.name}.tmp.png")
     try:
-        fig.savefig(tmp, dpi=120, bbox_inches="tight")
-        os.replace(tmp, path)
+        with atomic_path(path, suffix=".tmp.png") as tmp:
+            fig.savefig(tmp, dpi=120, bbox_inches="tight")
     finally:
-        tmp.unlink(missing_ok=True)
         plt.close(fig)
     return path
 

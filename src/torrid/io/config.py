@@ -15,6 +15,8 @@ import math
 from dataclasses import dataclass, field
 from typing import Any
 
+from torrid.physics.cases import earth
+
 SECONDS_PER_DAY = 86400.0
 
 
@@ -22,7 +24,7 @@ class ConfigError(ValueError):
     """A configuration value or key that is not allowed (the message is one line)."""
 
 
-def _show(value) -> str:
+def short_repr(value) -> str:
     """repr of a value, shortened so an error message stays one readable line."""
     text = repr(value)
     return text if len(text) <= 40 else text[:37] + "..."
@@ -34,20 +36,20 @@ def _number(section: str, key: str, value, *, minimum=None, maximum=None, strict
     where = f"{section}.{key}"
     if isinstance(value, bool) or not isinstance(value, (int, float)):
         kind = "an integer" if integer else "a number"
-        raise ConfigError(f"{where} = {_show(value)}: must be {kind}")
+        raise ConfigError(f"{where} = {short_repr(value)}: must be {kind}")
     try:
         as_float = float(value)
     except OverflowError:
-        raise ConfigError(f"{where} = {_show(value)}: too large") from None
+        raise ConfigError(f"{where} = {short_repr(value)}: too large") from None
     if integer and not (isinstance(value, int) or as_float.is_integer()):
-        raise ConfigError(f"{where} = {_show(value)}: must be an integer")
+        raise ConfigError(f"{where} = {short_repr(value)}: must be an integer")
     if math.isnan(as_float) or (math.isinf(as_float) and not allow_inf):
-        raise ConfigError(f"{where} = {_show(value)}: must be a finite number")
+        raise ConfigError(f"{where} = {short_repr(value)}: must be a finite number")
     if minimum is not None and (value <= minimum if strict_min else value < minimum):
         op = ">" if strict_min else ">="
-        raise ConfigError(f"{where} = {_show(value)}: must be {op} {minimum}")
+        raise ConfigError(f"{where} = {short_repr(value)}: must be {op} {minimum}")
     if maximum is not None and value > maximum:
-        raise ConfigError(f"{where} = {_show(value)}: must be <= {maximum}")
+        raise ConfigError(f"{where} = {short_repr(value)}: must be <= {maximum}")
     return int(value) if integer else float(value)
 
 
@@ -66,9 +68,9 @@ class PlanetConfig:
         (Reduced) gravity g (m s^-2); converts geopotential to thickness.
     """
 
-    radius_m: float = 6.37122e6
-    rotation_period_days: float = 2 * math.pi / 7.292e-5 / SECONDS_PER_DAY
-    gravity_m_s2: float = 9.80616
+    radius_m: float = earth.RADIUS_M
+    rotation_period_days: float = 2 * math.pi / earth.ROTATION_RATE_S / SECONDS_PER_DAY
+    gravity_m_s2: float = earth.GRAVITY_M_S2
 
     def __post_init__(self):
         s = "planet"
@@ -191,7 +193,7 @@ class RunConfig:
                                                     strict_min=True))
         if self.initial_fields is not None and (not isinstance(self.initial_fields, str)
                                                 or not self.initial_fields.strip()):
-            raise ConfigError(f"run.initial_fields = {_show(self.initial_fields)}: must be a "
+            raise ConfigError(f"run.initial_fields = {short_repr(self.initial_fields)}: must be a "
                               "file name")
 
 
@@ -214,7 +216,7 @@ class CaseConfig:
         from torrid.physics.cases import CASES
 
         if not isinstance(self.name, str) or self.name not in CASES:
-            raise ConfigError(f"case.name = {_show(self.name)}: must be one of {', '.join(CASES)}")
+            raise ConfigError(f"case.name = {short_repr(self.name)}: must be one of {', '.join(CASES)}")
         a = _number("case", "alpha_rad", self.alpha_rad, minimum=-math.pi, maximum=math.pi)
         if a != 0 and self.name != "williamson2":
             raise ConfigError(f"case.alpha_rad = {a!r}: only williamson2 takes a tilt angle")
@@ -290,7 +292,7 @@ class OrbitConfig:
             raise ConfigError(f"orbit.eccentricity = {e!r}: must be in [0, 1) (a bound orbit)")
         set_(self, "eccentricity", e)
         if not isinstance(self.rotation, str) or self.rotation not in ROTATION_CHOICES:
-            raise ConfigError(f"orbit.rotation = {_show(self.rotation)}: must be one of "
+            raise ConfigError(f"orbit.rotation = {short_repr(self.rotation)}: must be one of "
                               f"{', '.join(ROTATION_CHOICES)}")
         if self.orbital_period_days is not None:
             set_(self, "orbital_period_days", _number(s, "orbital_period_days",

@@ -8,7 +8,6 @@ Tabulated band responses are read by :func:`read_response` (two-column CSV).
 
 from __future__ import annotations
 
-import csv
 import dataclasses
 import difflib
 import math
@@ -18,6 +17,8 @@ from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
+
+from torrid.io.csvtable import numeric_rows
 
 #: nominal solar radius (m; IAU 2015 Resolution B3) and astronomical unit (m; IAU 2012 B2)
 SOLAR_RADIUS_M = 6.957e8
@@ -246,31 +247,9 @@ def read_response(path: str | os.PathLike) -> tuple[np.ndarray, np.ndarray]:
         Wavelengths (micron) and responses.
     """
     path = Path(path)
-    if not path.is_file():
-        raise ObserverError(f"{path}: no such response file")
-    try:
-        text = path.read_text(encoding="utf-8")
-    except (OSError, UnicodeDecodeError):
-        raise ObserverError(f"{path}: not a readable text (UTF-8) file") from None
-    rows, first = [], True
-    for number, fields in enumerate(csv.reader(text.splitlines()), start=1):
-        if not fields or not "".join(fields).strip() or fields[0].lstrip().startswith("#"):
-            continue
-        where = f"{path}, line {number}"
-        try:
-            values = [float(v) for v in fields]
-        except ValueError:
-            if first:
-                first = False
-                continue  # the header
-            raise ObserverError(f"{where}: {','.join(fields)!r} is not two numbers") from None
-        first = False
-        if len(values) != 2:
-            raise ObserverError(f"{where}: {len(values)} columns, expected 2 "
-                                "(wavelength in micron, response)")
-        lam, resp = values
-        if not (math.isfinite(lam) and math.isfinite(resp)):
-            raise ObserverError(f"{where}: values must be finite numbers")
+    rows = []
+    for where, (lam, resp) in numeric_rows(path, 2, ObserverError, "response file",
+                                           "wavelength in micron, response"):
         if lam <= 0:
             raise ObserverError(f"{where}: wavelength {lam:g} micron must be > 0")
         if resp < 0:

@@ -3,11 +3,11 @@
 from __future__ import annotations
 
 import os
-import tempfile
 from pathlib import Path
 
 import xarray as xr
 
+from torrid.io.atomic import atomic_path
 from torrid.io.runfile import check_writable, write_atomic
 
 #: the curve's columns in a CSV file (variables over phase)
@@ -39,14 +39,7 @@ def write_phase_csv(ds: xr.Dataset, path: str | os.PathLike, overwrite: bool = F
             lines.append(f"# {key}: {ds.attrs[key]}")
     frame = ds[columns].to_dataframe()
     frame.columns = [f"{c}_{ds[c].attrs.get('units', '1')}".replace(" ", "") for c in columns]
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8", newline="") as handle:
-            handle.write("\n".join(lines) + "\n")
-            frame.to_csv(handle, float_format="%.10g")
-        os.chmod(tmp, 0o644)
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
+    with atomic_path(path) as tmp, open(tmp, "w", encoding="utf-8", newline="") as handle:
+        handle.write("\n".join(lines) + "\n")
+        frame.to_csv(handle, float_format="%.10g")
     return path

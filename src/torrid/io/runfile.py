@@ -7,12 +7,12 @@ reader never sees a half-written file under the final name. Nothing is replaced 
 from __future__ import annotations
 
 import os
-import tempfile
 from pathlib import Path
 
 import numpy as np
 import xarray as xr
 
+from torrid.io.atomic import atomic_path
 from torrid.io.variables import COORDINATES, VARIABLES
 
 
@@ -69,18 +69,9 @@ def build_dataset(times_days, latitude_deg, longitude_deg, series: dict[str, lis
 def write_atomic(ds: xr.Dataset, path: str | os.PathLike, overwrite: bool = False) -> Path:
     """Write ``ds`` to netCDF4 at ``path`` via a temporary file in the same folder."""
     path = check_writable(path, overwrite)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    os.close(fd)
-    umask = os.umask(0)
-    os.umask(umask)
-    os.chmod(tmp, 0o666 & ~umask)  # mkstemp makes it private; a run file is an ordinary file
-    try:
-        encoding = {name: {"zlib": True, "complevel": 1} for name in ds.data_vars}
+    encoding = {name: {"zlib": True, "complevel": 1} for name in ds.data_vars}
+    with atomic_path(path) as tmp:
         ds.to_netcdf(tmp, engine="netcdf4", format="NETCDF4", encoding=encoding)
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
     return path
 
 

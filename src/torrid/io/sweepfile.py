@@ -41,7 +41,7 @@ from pathlib import Path
 
 import numpy as np
 
-from torrid.io.config import ConfigError, ModelConfig
+from torrid.io.config import ConfigError, ModelConfig, short_repr
 from torrid.io.sweepspec import SweepAxis, SweepDimension, SweepSpec, config_keys
 from torrid.io.tomlfile import read_toml
 
@@ -58,11 +58,6 @@ def _suggest(given: str, known: list[str], what: str) -> str:
     close = difflib.get_close_matches(given, known, n=1, cutoff=0.5)
     hint = f" (did you mean {close[0]!r}?)" if close else f" (known: {', '.join(known)})"
     return f"unknown {what} {given!r}{hint}"
-
-
-def _show(value) -> str:
-    text = repr(value)
-    return text if len(text) <= 40 else text[:37] + "..."
 
 
 def _round(value: float) -> float:
@@ -85,7 +80,7 @@ def _kind(value) -> str | None:
 
 def _generated(where: str, name: str, spec, log: bool) -> tuple:
     """Values of ``log_range``/``range = [start, stop, count]``."""
-    shown = f"{where}: {name} = {_show(spec)}"
+    shown = f"{where}: {name} = {short_repr(spec)}"
     if not isinstance(spec, list) or len(spec) != 3:
         raise ConfigError(f"{shown}: must be [start, stop, count]")
     start, stop, count = spec
@@ -108,14 +103,14 @@ def _generated(where: str, name: str, spec, log: bool) -> tuple:
 
 def _axis(where: str, table, keys: dict[str, list[str]]) -> tuple[SweepAxis, str | None]:
     if not isinstance(table, dict):
-        raise ConfigError(f"{where}: must be a table ([[sweep.axis]]), got {_show(table)}")
+        raise ConfigError(f"{where}: must be a table ([[sweep.axis]]), got {short_repr(table)}")
     for key in table:
         if key not in AXIS_KEYS:
             raise ConfigError(f"{where}: {_suggest(key, list(AXIS_KEYS), 'key')}")
     key = table.get("key")
     if not isinstance(key, str):
         raise ConfigError(f"{where}: needs key = \"section.name\" (a configuration key), "
-                          f"got {_show(key)}")
+                          f"got {short_repr(key)}")
     section, dot, name = key.partition(".")
     if not dot or section not in keys:
         raise ConfigError(f"{where}: key = {key!r}: "
@@ -132,15 +127,15 @@ def _axis(where: str, table, keys: dict[str, list[str]]) -> tuple[SweepAxis, str
     if generator == "values":
         values = table["values"]
         if not isinstance(values, list) or not values:
-            raise ConfigError(f"{where}: values = {_show(values)}: must be a non-empty list")
+            raise ConfigError(f"{where}: values = {short_repr(values)}: must be a non-empty list")
         kinds = {_kind(v) for v in values}
         if None in kinds or len(kinds) > 1:
-            raise ConfigError(f"{where}: values = {_show(values)}: must be all numbers, all "
+            raise ConfigError(f"{where}: values = {short_repr(values)}: must be all numbers, all "
                               "strings or all booleans")
         if any(isinstance(v, float) and math.isnan(v) for v in values):
-            raise ConfigError(f"{where}: values = {_show(values)}: nan is not a value")
+            raise ConfigError(f"{where}: values = {short_repr(values)}: nan is not a value")
         if len(set(values)) != len(values):
-            raise ConfigError(f"{where}: values = {_show(values)}: has duplicates")
+            raise ConfigError(f"{where}: values = {short_repr(values)}: has duplicates")
         axis = SweepAxis(key, tuple(values), "values")
     else:
         axis = SweepAxis(key, _generated(where, generator, table[generator],
@@ -148,7 +143,7 @@ def _axis(where: str, table, keys: dict[str, list[str]]) -> tuple[SweepAxis, str
                          "log" if generator == "log_range" else "linear")
     group = table.get("zip")
     if group is not None and (not isinstance(group, str) or not group):
-        raise ConfigError(f"{where}: zip = {_show(group)}: must be a non-empty group name")
+        raise ConfigError(f"{where}: zip = {short_repr(group)}: must be a non-empty group name")
     return axis, group
 
 
@@ -192,14 +187,14 @@ def _check_base(path, base: dict, keys: dict[str, list[str]], swept: list[str]) 
         if section not in keys:
             raise ConfigError(f"{path}: " + _suggest(section, [*keys, "sweep"], "section"))
         if not isinstance(table, dict):
-            raise ConfigError(f"{path}: [{section}] must be a table of keys, got {_show(table)}")
+            raise ConfigError(f"{path}: [{section}] must be a table of keys, got {short_repr(table)}")
         for key, value in table.items():
             if key not in keys[section]:
                 raise ConfigError(f"{path}: " + _suggest(f"{section}.{key}",
                                                          [f"{section}.{k}" for k in keys[section]],
                                                          "key"))
             if _kind(value) is None:
-                raise ConfigError(f"{path}: {section}.{key} = {_show(value)}: must be a "
+                raise ConfigError(f"{path}: {section}.{key} = {short_repr(value)}: must be a "
                                   "number, string or boolean")
     try:
         ModelConfig.from_dict(base)
@@ -220,19 +215,19 @@ def parse_sweep(data: dict, source: str | os.PathLike, folder: str | os.PathLike
         raise ConfigError(f"{path}: no [sweep] section (a sweep file needs [sweep] with at "
                           "least one [[sweep.axis]])")
     if not isinstance(sweep, dict):
-        raise ConfigError(f"{path}: [sweep] must be a table, got {_show(sweep)}")
+        raise ConfigError(f"{path}: [sweep] must be a table, got {short_repr(sweep)}")
     for key in sweep:
         if key not in SWEEP_KEYS:
             raise ConfigError(f"{path}: " + _suggest(f"sweep.{key}",
                                                      [f"sweep.{k}" for k in SWEEP_KEYS], "key"))
     name = sweep.get("name", path.stem)
     if not isinstance(name, str) or not _NAME.match(name):
-        raise ConfigError(f"{path}: sweep.name = {_show(name)}: must be a name of letters, "
+        raise ConfigError(f"{path}: sweep.name = {short_repr(name)}: must be a name of letters, "
                           "digits, '.', '_' and '-' (it names files)")
     if folder is None:
         folder = sweep.get("folder", str(DEFAULT_PARENT / name))
         if not isinstance(folder, str) or not folder.strip():
-            raise ConfigError(f"{path}: sweep.folder = {_show(folder)}: must be a folder name")
+            raise ConfigError(f"{path}: sweep.folder = {short_repr(folder)}: must be a folder name")
     dims = _dimensions(path, sweep.get("axis"), keys)
     _check_base(path, data, keys, [a.key for d in dims for a in d.axes])
     return SweepSpec(name=name, folder=Path(folder), base=data, dimensions=dims, source=path)

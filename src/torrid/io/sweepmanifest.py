@@ -11,10 +11,10 @@ from __future__ import annotations
 
 import json
 import os
-import tempfile
 from pathlib import Path
 
 import torrid
+from torrid.io.atomic import write_text
 from torrid.io.sweepspec import SweepPoint, SweepSpec
 
 MANIFEST_NAME = "sweep.json"
@@ -43,24 +43,6 @@ def manifest_data(spec: SweepSpec, points: list[SweepPoint]) -> dict:
     }
 
 
-def write_text_atomic(path: str | os.PathLike, text: str) -> Path:
-    """Write ``text`` to ``path`` via a temporary file in the same folder, then rename."""
-    path = Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(fd, "w", encoding="utf-8") as fh:
-            fh.write(text)
-        umask = os.umask(0)
-        os.umask(umask)
-        os.chmod(tmp, 0o666 & ~umask)
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
-    return path
-
-
 def write_manifest(folder: str | os.PathLike, data: dict) -> Path:
     """Write the manifest ``data`` into ``folder``.
 
@@ -78,7 +60,7 @@ def write_manifest(folder: str | os.PathLike, data: dict) -> Path:
             raise SweepFolderError(f"{folder} holds the sweep {old.get('torrid_sweep')!r} "
                                    f"({MANIFEST_NAME}), not {data['torrid_sweep']!r}: give "
                                    "this sweep its own folder (sweep.folder or --folder)")
-    return write_text_atomic(path, json.dumps(data, indent=1, allow_nan=True) + "\n")
+    return write_text(path, json.dumps(data, indent=1, allow_nan=True) + "\n")
 
 
 def read_manifest(folder: str | os.PathLike) -> dict:

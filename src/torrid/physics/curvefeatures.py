@@ -49,6 +49,16 @@ def first_harmonic(values) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     return f.mean(axis=-1), 2 * np.abs(c1), np.remainder(-np.angle(c1) / (2 * np.pi), 1.0)
 
 
+def unwrap_degrees(angle_deg) -> np.ndarray:
+    """Remove 360-degree jumps from a series of angles (degrees); NaN entries (undefined
+    angles) stay NaN and are skipped, so the finite neighbours around them are joined."""
+    values = np.array(angle_deg, dtype=float)
+    finite = np.isfinite(values)
+    values[finite] = np.unwrap(values[finite], period=360.0)
+    return values
+
+
 def wrap_degrees(angle_deg):
-    """Wrap angles (degrees) to [-180, 180)."""
-    return np.remainder(np.asarray(angle_deg, dtype=float) + 180.0, 360.0) - 180.0
+    """Wrap angles (degrees) to [-180, 180) (arrays or scalars)."""
+    wrapped = np.remainder(np.asarray(angle_deg, dtype=float) + 180.0, 360.0) - 180.0
+    return np.where(wrapped >= 180.0, -180.0, wrapped)  # the remainder can round up to 360

@@ -38,6 +38,7 @@ from __future__ import annotations
 import ducc0
 import numpy as np
 
+from torrid.physics.curvefeatures import wrap_degrees
 from torrid.physics.tendencies import DIVERGENCE, GEOPOTENTIAL, VORTICITY
 from torrid.physics.transforms import Transforms
 
@@ -84,12 +85,6 @@ DIAGNOSTIC_VARIABLES: dict[str, tuple[str, str]] = {
 
 
 # --- helpers ---------------------------------------------------------------------------------
-def _wrap_degrees(angle_deg: float) -> float:
-    """Wrap an angle (degrees) to [-180, 180)."""
-    wrapped = (angle_deg + 180.0) % 360.0 - 180.0
-    return -180.0 if wrapped >= 180.0 else float(wrapped)  # % can round up to exactly 360
-
-
 def _wind_coefficients(transforms: Transforms, vorticity: np.ndarray,
                        divergence: np.ndarray) -> np.ndarray:
     """Spin-1 (E, B) coefficients of the winds of zeta and delta (s^-1), shape (2, ncoeff), m s^-1.
@@ -138,36 +133,6 @@ def _is_flat(values: np.ndarray) -> bool:
 
 
 # --- public functions ------------------------------------------------------------------------
-def equilibrium_thickness(lat: np.ndarray, lon: np.ndarray, *, mean_thickness_m: float,
-                          contrast: float, substellar_longitude_rad: float) -> np.ndarray:
-    """Radiative-equilibrium layer thickness h_eq (m) of a tidally locked planet.
-
-    h_eq = H (1 + contrast max(0, cos(lat) cos(lon - lon_sub))): H + dH cos(lon - lon_sub) cos(lat)
-    on the dayside and H on the nightside (Showman & Polvani 2011; Perez-Becker & Showman 2013),
-    with contrast = dH / H.
-
-    Parameters
-    ----------
-    lat, lon : array_like
-        Latitude and longitude (rad); broadcast against each other (e.g. ``grid.mesh()``).
-    mean_thickness_m : float
-        H, the nightside (and reference) thickness (m).
-    contrast : float
-        dH / H, the fractional substellar thickness excess (dimensionless).
-    substellar_longitude_rad : float
-        Substellar longitude lon_sub (rad, east positive).
-
-    Returns
-    -------
-    numpy.ndarray
-        h_eq (m), of the broadcast shape of ``lat`` and ``lon``.
-    """
-    lat = np.asarray(lat, dtype=float)
-    lon = np.asarray(lon, dtype=float)
-    cos_angle = np.cos(lat) * np.cos(lon - substellar_longitude_rad)
-    return mean_thickness_m * (1.0 + contrast * np.maximum(0.0, cos_angle))
-
-
 def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopotential: float,
                        gravity_m_s2: float, rotation_rate_s: float,
                        substellar_longitude_rad: float,
@@ -191,7 +156,7 @@ def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopot
         Substellar longitude lon_sub at this time (rad, east positive; any real value).
     equilibrium_thickness_m : numpy.ndarray, shape (nlat, nlon)
         Radiative-equilibrium thickness h_eq (m) on the model grid (rings north to south,
-        longitudes 2 pi j / nlon), e.g. from :func:`equilibrium_thickness`.
+        longitudes 2 pi j / nlon), e.g. from :func:`torrid.physics.forcing.equilibrium_thickness`.
 
     Returns
     -------
@@ -274,9 +239,10 @@ def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopot
         hotspot = np.nan
     else:
         k, _ = _parabolic_peak(h_equator)
-        hotspot = _wrap_degrees(360.0 * k / nring)
+        hotspot = float(wrap_degrees(360.0 * k / nring))
     out["hotspot_longitude"] = hotspot
-    out["hotspot_offset"] = _wrap_degrees(hotspot - lon_sub_deg) if np.isfinite(hotspot) else np.nan
+    out["hotspot_offset"] = (float(wrap_degrees(hotspot - lon_sub_deg)) if np.isfinite(hotspot)
+                             else np.nan)
 
     # harmonic offset of the equatorial band
     band = np.abs(grid.latitude) <= np.deg2rad(EQUATORIAL_BAND_HALF_WIDTH_DEG)
@@ -286,7 +252,8 @@ def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopot
     if abs(c1) <= FLAT_FIELD_TOLERANCE * grid.nlon * np.max(np.abs(band_profile)):
         out["hotspot_offset_harmonic"] = np.nan
     else:
-        out["hotspot_offset_harmonic"] = _wrap_degrees(-np.rad2deg(np.angle(c1)) - lon_sub_deg)
+        out["hotspot_offset_harmonic"] = float(wrap_degrees(-np.rad2deg(np.angle(c1))
+                                                            - lon_sub_deg))
 
     # day-night contrast
     lat2, lon2 = grid.mesh()

@@ -180,9 +180,3 @@ def _observers(lat, lon) -> tuple[np.ndarray, np.ndarray]:
                                    np.atleast_1d(np.asarray(lon, dtype=float)))
     return lat.ravel(), lon.ravel()
 
-
-def disk_integrals(intensity, latitude_deg, longitude_deg, observer_lat_rad, observer_lon_rad,
-                   snapshot=None) -> np.ndarray:
-    """One-off :meth:`DiskQuadrature.integrate` on the grid ``latitude_deg``, ``longitude_deg``."""
-    return DiskQuadrature(latitude_deg, longitude_deg).integrate(
-        intensity, observer_lat_rad, observer_lon_rad, snapshot)

@@ -24,11 +24,34 @@ from torrid.physics.orbit import Orbit
 from torrid.physics.transforms import Transforms
 
 
-def equilibrium_geopotential(lat, lon, *, mean_geopotential: float, contrast: float,
-                             substellar_longitude_rad: float) -> np.ndarray:
-    """Phi_eq = g H (1 + c max(0, cos(lat) cos(lon - lon_sub))) in m^2 s^-2 (lat, lon in rad)."""
-    return mean_geopotential * (
-        1 + contrast * np.maximum(0.0, np.cos(lat) * np.cos(lon - substellar_longitude_rad)))
+def equilibrium_thickness(lat: np.ndarray, lon: np.ndarray, *, mean_thickness_m: float,
+                          contrast: float, substellar_longitude_rad: float) -> np.ndarray:
+    """Radiative-equilibrium layer thickness h_eq (m) of a tidally locked planet.
+
+    h_eq = H (1 + contrast max(0, cos(lat) cos(lon - lon_sub))): H + dH cos(lon - lon_sub) cos(lat)
+    on the dayside and H on the nightside (Showman & Polvani 2011; Perez-Becker & Showman 2013),
+    with contrast = dH / H.
+
+    Parameters
+    ----------
+    lat, lon : array_like
+        Latitude and longitude (rad); broadcast against each other (e.g. ``grid.mesh()``).
+    mean_thickness_m : float
+        H, the nightside (and reference) thickness (m).
+    contrast : float
+        dH / H, the fractional substellar thickness excess (dimensionless).
+    substellar_longitude_rad : float
+        Substellar longitude lon_sub (rad, east positive).
+
+    Returns
+    -------
+    numpy.ndarray
+        h_eq (m), of the broadcast shape of ``lat`` and ``lon``.
+    """
+    lat = np.asarray(lat, dtype=float)
+    lon = np.asarray(lon, dtype=float)
+    cos_angle = np.cos(lat) * np.cos(lon - substellar_longitude_rad)
+    return mean_thickness_m * (1.0 + contrast * np.maximum(0.0, cos_angle))
 
 
 class DayNightForcing:

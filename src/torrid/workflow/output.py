@@ -9,6 +9,7 @@ import numpy as np
 
 from torrid.io.provenance import provenance_attrs
 from torrid.physics import invariants
+from torrid.physics.curvefeatures import unwrap_degrees, wrap_degrees
 from torrid.physics.diagnostics import DIAGNOSTIC_VARIABLES, planet_diagnostics
 from torrid.physics.fields import grid_state
 from torrid.workflow.setup import Model
@@ -93,20 +94,13 @@ def snapshot(model: Model, state: np.ndarray, time_s: float = 0.0) -> dict[str, 
 def final_value(times_days, values, window_days: float, angle: bool = False) -> float:
     """Time mean of a diagnostic over the trailing window (its last value if the run is
     shorter than the window). Angles (degrees) are unwrapped first."""
-    values = np.asarray(values, float)
-    if angle:
-        finite = np.isfinite(values)
-        if not finite.all():
-            values = np.where(finite, values, np.nan)
-        if finite.any():
-            values = np.where(finite, np.unwrap(np.where(finite, values, 0.0), period=360.0),
-                              np.nan)
+    values = unwrap_degrees(values) if angle else np.asarray(values, float)
     end = times_days[-1]
     if end - times_days[0] < window_days or not np.isfinite(values[-1]):
         mean = values[-1]
     else:
         mean = window_means(times_days, values, end - window_days, end)
-    return float((mean + 180.0) % 360.0 - 180.0) if angle and np.isfinite(mean) else float(mean)
+    return float(wrap_degrees(mean)) if angle else float(mean)
 
 
 def planet_attrs(model: Model, times_days: list, series: dict, criterion: SteadyCriterion,

@@ -18,11 +18,11 @@ from __future__ import annotations
 
 import json
 import os
-import tempfile
 from pathlib import Path
 
 import numpy as np
 
+from torrid.io.atomic import atomic_path
 from torrid.io.config import ConfigError, ModelConfig
 
 
@@ -33,15 +33,8 @@ def restart_folder(output: str | os.PathLike) -> Path:
 
 
 def _save_npz(path: Path, **arrays) -> None:
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    os.close(fd)
-    try:
-        with open(tmp, "wb") as fh:
-            np.savez(fh, **arrays)
-        os.replace(tmp, path)
-    except BaseException:
-        Path(tmp).unlink(missing_ok=True)
-        raise
+    with atomic_path(path) as tmp, open(tmp, "wb") as fh:
+        np.savez(fh, **arrays)
 
 
 class RestartStore:

@@ -23,6 +23,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from torrid.physics.curvefeatures import unwrap_degrees
+
 MONITORED = ("kinetic_energy", "day_night_contrast", "equatorial_zonal_wind", "max_wind_speed",
              "hotspot_offset_harmonic")
 
@@ -70,9 +72,7 @@ def is_steady(times_days: list[float], series: dict[str, list[float]],
     for name in MONITORED:
         values = np.asarray(series[name], float)
         if name.startswith("hotspot"):  # undefined (NaN) while the layer is flat
-            finite = np.isfinite(values)
-            values = np.where(finite, np.unwrap(np.where(finite, values, 0.0), period=360.0),
-                              np.nan)
+            values = unwrap_degrees(values)
         means[name] = (window_means(t, values, now - 2 * w, now - w),
                        window_means(t, values, now - w, now))
     scale = {"kinetic_energy": abs(means["kinetic_energy"][1]) or 1e-300,
