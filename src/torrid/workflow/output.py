@@ -52,8 +52,10 @@ def output_coordinates(model: Model) -> tuple[np.ndarray, np.ndarray]:
     return lat, lon
 
 
-def planet_snapshot(model: Model, state: np.ndarray, time_s: float) -> dict[str, float]:
-    """Hot-planet diagnostics of one state at ``time_s`` (s)."""
+def planet_snapshot(model: Model, state: np.ndarray, time_s: float,
+                    geopotential_deviation: np.ndarray) -> dict[str, float]:
+    """Hot-planet diagnostics of one state at ``time_s`` (s); ``geopotential_deviation`` is the
+    state's phi' on the model grid (m^2 s^-2), already synthesised by the caller."""
     forcing = model.forcing
     lon_sub, _ = forcing.state_at(time_s)
     h_eq = forcing.equilibrium(time_s) / model.gravity_m_s2
@@ -61,8 +63,8 @@ def planet_snapshot(model: Model, state: np.ndarray, time_s: float) -> dict[str,
                              gravity_m_s2=model.gravity_m_s2,
                              rotation_rate_s=model.rotation_rate_s,
                              substellar_longitude_rad=lon_sub, equilibrium_thickness_m=h_eq)
-    phi = model.transforms.to_grid(state[2])
-    out["mean_mass_source"] = model.grid.global_mean(forcing.heating(time_s, phi)) / model.gravity_m_s2
+    source = forcing.heating(time_s, geopotential_deviation)
+    out["mean_mass_source"] = model.grid.global_mean(source) / model.gravity_m_s2
     out["substellar_longitude"] = float(np.degrees(lon_sub))
     out["star_distance_ratio"] = float(model.orbit.distance_ratio(time_s))
     return out
@@ -81,7 +83,7 @@ def snapshot(model: Model, state: np.ndarray, time_s: float = 0.0) -> dict[str, 
     }
     out = {k: to_output_grid(v) for k, v in out.items()}
     if model.forcing is not None:
-        out.update(planet_snapshot(model, state, time_s))
+        out.update(planet_snapshot(model, state, time_s, fields["geopotential_deviation"]))
     out["max_speed"] = float(np.sqrt(fields["u"] ** 2 + fields["v"] ** 2).max())
     out["mean_thickness"] = invariants.mean_thickness(grid, thickness)
     out["total_energy"] = invariants.total_energy(grid, thickness, fields["u"], fields["v"],
