@@ -15,6 +15,7 @@ import math
 from dataclasses import dataclass, field
 from typing import Any
 
+from torrid.io.tomltext import parse_value
 from torrid.physics.cases import earth
 
 SECONDS_PER_DAY = 86400.0
@@ -394,16 +395,6 @@ class ModelConfig:
         if section not in _SECTIONS:
             raise ConfigError(_unknown(section, list(_SECTIONS), "section"))
         return self.replace(**{section: {name.strip(): parse_value(text.strip())}})
-
-
-def parse_value(text: str):
-    """A value in TOML syntax (numbers, inf, true/false, quoted strings); bare words are strings."""
-    from torrid.io import tomlfile
-
-    try:
-        return tomlfile.loads(f"v = {text}")["v"]
-    except tomlfile.TOMLDecodeError:
-        return text
 
 
 def _build_section(name: str, cls, values: dict):

@@ -5,19 +5,8 @@ from __future__ import annotations
 import os
 from pathlib import Path
 
-try:
-    import tomllib
-except ImportError:  # Python 3.10
-    import tomli as tomllib
-
 from torrid.io.config import ConfigError, ModelConfig
-
-TOMLDecodeError = tomllib.TOMLDecodeError
-
-
-def loads(text: str) -> dict:
-    """Parse TOML text (raises tomllib.TOMLDecodeError)."""
-    return tomllib.loads(text)
+from torrid.io.tomltext import TOMLDecodeError, loads
 
 
 def read_toml(path: str | os.PathLike) -> dict:
@@ -26,10 +15,10 @@ def read_toml(path: str | os.PathLike) -> dict:
     if not path.is_file():
         raise ConfigError(f"{path}: no such configuration file")
     try:
-        return tomllib.loads(path.read_text(encoding="utf-8"))
+        return loads(path.read_text(encoding="utf-8"))
     except UnicodeDecodeError:
         raise ConfigError(f"{path}: not a text (UTF-8) file") from None
-    except tomllib.TOMLDecodeError as err:
+    except TOMLDecodeError as err:
         raise ConfigError(f"{path}: invalid TOML: {str(err).splitlines()[0]}") from None
 
 
