@@ -9,6 +9,7 @@ and the peak resident memory of a fresh process per truncation.
 
     python benchmarks/bench_step.py                 # T42, T85, T170
     python benchmarks/bench_step.py -T 85 --steps 200
+    python benchmarks/bench_step.py --planet        # the default planet's forced step instead
 """
 
 from __future__ import annotations
@@ -26,12 +27,16 @@ import numpy as np
 STAGES = 4  # explicit evaluations per ARS(4,4,3) step
 
 
-def measure(truncation: int, steps: int) -> dict:
+def measure(truncation: int, steps: int, planet: bool = False) -> dict:
     import torrid
     from torrid.physics.kernels import KERNEL_BACKEND
     from torrid.workflow.setup import build_model
 
-    model = build_model(torrid.build_case_config("williamson6", truncation=truncation))
+    if planet:  # the default planet: relaxation, mass exchange, hyperdiffusion
+        config = torrid.ModelConfig().replace(numerics={"truncation": truncation})
+    else:
+        config = torrid.build_case_config("williamson6", truncation=truncation)
+    model = build_model(config)
     tr, state = model.transforms, model.initial_state.copy()
     grid = model.grid
     scalar = np.zeros(grid.shape)
@@ -62,6 +67,7 @@ def measure(truncation: int, steps: int) -> dict:
     step_ms = statistics.median(step_times) * 1e3
     floor_ms = statistics.median(floor_times) * 1e3
     return {
+        "case": "planet" if planet else "williamson6",
         "truncation": truncation, "grid": f"{grid.nlat}x{grid.nlon}", "kernel": KERNEL_BACKEND,
         "step_ms": step_ms, "floor_ms": floor_ms, "ratio": step_ms / floor_ms,
         "peak_rss_mb": resource.getrusage(resource.RUSAGE_SELF).ru_maxrss / 1024,
@@ -74,19 +80,22 @@ def main() -> None:
     parser.add_argument("-T", "--truncations", type=int, nargs="+", default=[42, 85, 170])
     parser.add_argument("--steps", type=int, default=0,
                         help="steps timed per truncation (default: 400 / 200 / 60)")
+    parser.add_argument("--planet", action="store_true",
+                        help="time the default planet (forced) instead of Williamson case 6")
     parser.add_argument("--child", action="store_true", help=argparse.SUPPRESS)
     args = parser.parse_args()
     if args.child:
-        print(json.dumps(measure(args.truncations[0], args.steps)))
+        print(json.dumps(measure(args.truncations[0], args.steps, args.planet)))
         return
-    print(f"{'trunc':>5} {'grid':>8} {'kernel':>6} {'step ms':>8} {'floor ms':>9} {'ratio':>6} "
+    print(f"{'case':>11} {'trunc':>5} {'grid':>8} {'kernel':>6} {'step ms':>8} {'floor ms':>9} {'ratio':>6} "
           f"{'peak MB':>8}")
     for n in args.truncations:
         steps = args.steps or {42: 400, 85: 200}.get(n, 60)
         out = subprocess.run([sys.executable, __file__, "--child", "-T", str(n), "--steps",
-                              str(steps)], capture_output=True, text=True, check=True)
+                              str(steps), *(["--planet"] if args.planet else [])],
+                             capture_output=True, text=True, check=True)
         r = json.loads(out.stdout.strip().splitlines()[-1])
-        print(f"T{r['truncation']:>4} {r['grid']:>8} {r['kernel']:>6} {r['step_ms']:8.3f} "
+        print(f"{r['case']:>11} T{r['truncation']:>4} {r['grid']:>8} {r['kernel']:>6} {r['step_ms']:8.3f} "
               f"{r['floor_ms']:9.3f} {r['ratio']:6.2f} {r['peak_rss_mb']:8.0f}")
 
 

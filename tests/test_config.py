@@ -9,9 +9,9 @@ import torrid
 from torrid.io.config import ConfigError, ModelConfig, NumericsConfig, PlanetConfig
 
 
-def test_default_planet_is_the_williamson_earth():
+def test_standard_cases_run_on_the_williamson_earth():
     # Williamson et al. (1992), section 2: a = 6.37122e6 m, Omega = 7.292e-5 s^-1, g = 9.80616.
-    p = PlanetConfig()
+    p = torrid.build_case_config("williamson6").planet
     assert p.radius_m == 6.37122e6
     assert p.rotation_rate_s == pytest.approx(7.292e-5, rel=1e-14)
     assert p.gravity_m_s2 == 9.80616

@@ -72,8 +72,8 @@ def test_inviscid_energy_drift_bounded(inviscid_case6):
     gives errors growing in time by orders of magnitude.
     """
     model, ds = inviscid_case6[1]
-    assert model.hyperdiffusion_days == math.inf
-    assert np.all(model.linear.hyperdiffusion == 0)
+    assert model.process("hyperdiffusion").efolding_days == math.inf
+    assert np.all(model.process("hyperdiffusion").rates == 0)
     change = _energy_change(ds)
     z = ds.potential_enstrophy.values
     print(f"\ninviscid case 6 T42 {ENERGY_DAYS:g} days, dt {model.dt:.1f} s: dE/E {change:.3e}, "

@@ -26,8 +26,9 @@ from torrid.physics.diagnostics import (
     HOTSPOT_RING_OVERSAMPLING,
     planet_diagnostics,
 )
-from torrid.physics.fields import spectral_state
-from torrid.physics.forcing import equilibrium_thickness
+from torrid.physics.fields import grid_state, spectral_state
+from torrid.physics.invariants import CORE_DIAGNOSTICS, core_diagnostics
+from torrid.physics.processes.relaxation import equilibrium_thickness
 from torrid.physics.grid import SpectralGrid
 from torrid.physics.transforms import Transforms
 
@@ -69,9 +70,16 @@ def diagnose(tr, state, lon_sub_deg=0.0, h_eq=None, omega=0.0, lon_sub_rad=None)
     if h_eq is None:
         h_eq = equilibrium_thickness(lat, lon, mean_thickness_m=H_M, contrast=0.5,
                                      substellar_longitude_rad=sub)
-    return planet_diagnostics(tr, state, mean_geopotential=GRAVITY_M_S2 * H_M,
-                              gravity_m_s2=GRAVITY_M_S2, rotation_rate_s=omega,
-                              substellar_longitude_rad=sub, equilibrium_thickness_m=h_eq)
+    out = planet_diagnostics(tr, state, mean_geopotential=GRAVITY_M_S2 * H_M,
+                             gravity_m_s2=GRAVITY_M_S2, rotation_rate_s=omega,
+                             substellar_longitude_rad=sub, equilibrium_thickness_m=h_eq)
+    # the diagnostics of every run (mean thickness, maximum wind) come from the core
+    fields = grid_state(tr, state)
+    thickness = (fields["geopotential_deviation"] + GRAVITY_M_S2 * H_M) / GRAVITY_M_S2
+    out.update(core_diagnostics(tr.grid, thickness, fields["u"], fields["v"],
+                                fields["vorticity"], np.zeros(tr.grid.shape),
+                                np.zeros(tr.grid.shape), GRAVITY_M_S2))
+    return out
 
 
 def cosine_hotspot_bound_deg(tr):
@@ -89,7 +97,7 @@ def cosine_hotspot_bound_deg(tr):
 # --- metadata and the equilibrium ----------------------------------------------------------------
 def test_metadata_covers_every_returned_key(tr):
     d = diagnose(tr, make_state(tr, u=U_M_S * np.cos(tr.grid.mesh()[0])))
-    assert set(d) == set(DIAGNOSTIC_VARIABLES)
+    assert set(d) == set(DIAGNOSTIC_VARIABLES) | set(CORE_DIAGNOSTICS)
     assert all(isinstance(x, float) for x in d.values())
     allowed = {"degrees_east", "degree", "1", "m s-1", "km s-1", "m", "m3 s-2"}
     assert {units for units, _ in DIAGNOSTIC_VARIABLES.values()} <= allowed

@@ -81,7 +81,7 @@ def test_unperturbed_jet_steady_up_to_hyperdiffusion(unperturbed):
     model, ds, _ = unperturbed
     du = ds.u.values[-1] - ds.u.values[0]
     state = model.initial_state
-    decayed = state[0] * np.exp(-model.linear.hyperdiffusion * DAYS * 86400)
+    decayed = state[0] * np.exp(-model.process("hyperdiffusion").rates * DAYS * 86400)
     tr = model.transforms
     du_hd = _output(tr.winds(decayed, state[1])[1] - tr.winds(state[0], state[1])[1])
     remainder = float(np.abs(du - du_hd).max())

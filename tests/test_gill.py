@@ -48,7 +48,9 @@ import pytest
 from gill_solution import gill_fields, heating_profile, kelvin_amplitude, rossby_amplitude
 from torrid.physics.fields import grid_state
 from torrid.physics.grid import SpectralGrid
-from torrid.physics.linear import LinearTerms, hyperdiffusion_rates
+from torrid.physics.linear import LinearTerms
+from torrid.physics.processes import ImplicitRates, Process
+from torrid.physics.processes.hyperdiffusion import hyperdiffusion_rates
 from torrid.physics.tendencies import GEOPOTENTIAL, Dynamics
 from torrid.physics.timestepping import IMEXStepper
 from torrid.physics.transforms import Transforms
@@ -129,19 +131,17 @@ def test_gill_closed_form_is_continuous_and_bounded():
 # the model
 # --------------------------------------------------------------------------------------------
 
-class GillForcing:
-    """Forcing protocol of torrid.physics.tendencies: the source (Phi_eq - Phi_mean) / tau,
-    no momentum forcing (the mass-exchange term is second order, left out)."""
+class GillForcing(Process):
+    """A process (torrid.physics.processes.base): the source (Phi_eq - Phi_mean) / tau, no
+    momentum forcing (the mass-exchange term is second order, left out)."""
+
+    name = "gill_forcing"
 
     def __init__(self, source):
         self.source = source
 
-    def momentum(self, time_s, geopotential, winds, out_east, out_north):
-        out_east[...] = 0.0
-        out_north[...] = 0.0
-
-    def thickness_source(self, time_s, geopotential):
-        return self.source
+    def spectral_tendency(self, time_s, fields, out):
+        out[GEOPOTENTIAL] += self.source
 
 
 def run_linear_model(deformation_over_radius, truncation=42, n_tau=8.0, coriolis_step=0.5):
@@ -166,12 +166,12 @@ def run_linear_model(deformation_over_radius, truncation=42, n_tau=8.0, coriolis
     phi_eq = phi_mean * CONTRAST * heating_profile(x, LX) * np.exp(-y**2 / 4)
     forcing = GillForcing(tr.to_spectral(phi_eq / tau))
     l = grid.degree.astype(float)
-    linear = LinearTerms(
-        laplacian_factor=l * (l + 1) / RADIUS**2, mean_geopotential=phi_mean,
-        # del^8, e-folding tau at l = N: a rate below 0.004 / tau at l < N / 2
-        hyperdiffusion=hyperdiffusion_rates(l, truncation, tau, 4),
-        drag_rate=1 / tau, relaxation_rate=1 / tau)
-    dynamics = Dynamics(tr, 2 * OMEGA * np.sin(lat), phi_mean, forcing=forcing)
+    # del^8, e-folding tau at l = N: a rate below 0.004 / tau at l < N / 2
+    nu = hyperdiffusion_rates(l, truncation, tau, 4)
+    linear = LinearTerms.from_rates(
+        l * (l + 1) / RADIUS**2, phi_mean,
+        [ImplicitRates(nu, nu, nu), ImplicitRates(1 / tau, 1 / tau, 1 / tau)])
+    dynamics = Dynamics(tr, 2 * OMEGA * np.sin(lat), phi_mean, [forcing])
     dt = coriolis_step / (2 * OMEGA)
     state = np.zeros((3, grid.ncoeff), dtype=complex)
     stepper = IMEXStepper(dynamics, linear, dt, state.shape)

@@ -309,13 +309,13 @@ def test_forcing_equilibrium_equals_the_published_profile():
     """The forcing's cached, rotated form of h_eq equals the Showman & Polvani (2011) profile
     H (1 + dH/H max(0, cos(lat) cos(lon - lon_sub))) at a moving substellar point."""
     import torrid
-    from torrid.physics.forcing import equilibrium_thickness
+    from torrid.physics.processes.relaxation import equilibrium_thickness
     from torrid.workflow.setup import build_model
 
     model = build_model(torrid.load_config(
         __import__("pathlib").Path(__file__).parents[1] / "examples" / "eccentric.toml"
     ).replace(numerics={"truncation": 10}))
-    forcing, g = model.forcing, model.gravity_m_s2
+    forcing, g = model.process("newtonian_relaxation"), model.gravity_m_s2
     lat, lon = model.grid.mesh()
     for t in (0.0, 1.3e5, 2.9e5):
         lon_sub, contrast = forcing.state_at(t)

@@ -16,7 +16,7 @@ from scipy.special import sph_harm_y
 from torrid.physics.fields import spectral_state
 from torrid.physics.grid import SpectralGrid
 from torrid.physics.regrid import FitNotConvergedError, fit_scalar, fit_state, fit_winds
-from torrid.physics.tendencies import DIVERGENCE, GEOPOTENTIAL, VORTICITY
+from torrid.physics.state import DIVERGENCE, GEOPOTENTIAL, VORTICITY
 from torrid.physics.transforms import Transforms
 
 N = 21

@@ -8,10 +8,10 @@ import numpy as np
 from hypothesis import HealthCheck, given, settings
 from hypothesis import strategies as st
 
-from torrid.io.config import ConfigError, ModelConfig, _SECTIONS
+from torrid.io.config import SECTION_CLASSES, ConfigError, ModelConfig
 from torrid.io.tomlfile import load_config
 
-KNOWN = {name: list(cls.__dataclass_fields__) for name, cls in _SECTIONS.items()}
+KNOWN = {name: list(cls.__dataclass_fields__) for name, cls in SECTION_CLASSES.items()}
 values = st.one_of(
     st.none(), st.booleans(), st.integers(-10**6, 10**6), st.integers(),
     st.sampled_from([10**400, -10**400, 2**63, 0, 1, -1, 0.5, 1e308, -0.0]),

@@ -104,7 +104,7 @@ def hyperdiffusion_change(model, days, name):
     centred difference (the invariants are smooth in x); times the run length.
     """
     x = model.initial_state
-    nu = model.linear.hyperdiffusion
+    nu = model.process("hyperdiffusion").rates
     step = 1e3  # s; nu_l * step <= 2e-3 for the cases here: well inside the linear range
 
     def value(state):

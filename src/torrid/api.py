@@ -14,10 +14,9 @@ import os
 
 import xarray as xr
 
-from torrid.io.config import CaseConfig, ModelConfig, NumericsConfig, PlanetConfig, RunConfig
+from torrid.io.config import ConfigError, ModelConfig
 from torrid.io.tomlfile import load_config
 from torrid.physics.cases import CASES
-from torrid.io.config import ConfigError
 from torrid.io.observer import ObserverSettings
 from torrid.workflow.phase import phase_curve
 from torrid.workflow.driver import run_config, run_to_file
@@ -26,50 +25,50 @@ __all__ = ["build_case_config", "run", "load_config", "ModelConfig", "phase_curv
            "ObserverSettings", "sweep", "fit"]
 
 
-def build_case_config(case: str = "williamson6", *, truncation: int = 42,
+def build_case_config(case: str = "williamson6", *, truncation: int | None = None,
                       days: float | None = None, output_interval_days: float | None = None,
-                      alpha_rad: float = 0.0, hyperdiffusion_days: float | None = None,
+                      alpha_rad: float | None = None, hyperdiffusion_days: float | None = None,
                       hyperdiffusion_order: int | None = None, time_step_s: float | None = None,
-                      courant_number: float = 1.0, threads: int = 1) -> ModelConfig:
+                      courant_number: float | None = None,
+                      threads: int | None = None) -> ModelConfig:
     """Validated configuration of a built-in standard case.
+
+    Every argument left at ``None`` takes the case's default, or else the settings table's
+    (``torrid settings``).
 
     Parameters
     ----------
     case : str
         ``williamson2``, ``williamson5``, ``williamson6``, ``galewsky`` or
         ``galewsky-unperturbed``.
-    truncation : int
+    truncation : int, optional
         Triangular truncation N.
     days, output_interval_days : float, optional
-        Run length and output interval (days); the case's defaults if omitted.
-    alpha_rad : float
+        Run length and output interval (days).
+    alpha_rad : float, optional
         Williamson case 2 only: tilt of the flow's axis (rad).
     hyperdiffusion_days, hyperdiffusion_order : optional
-        E-folding time (days) at the truncation scale and p of del^(2p); the case's defaults
-        if omitted (``math.inf`` switches it off).
+        E-folding time (days) at the truncation scale and p of del^(2p) (``math.inf``
+        switches it off).
     time_step_s : float, optional
         Fixed time step (s); automatic from ``courant_number`` if omitted.
-    threads : int
+    courant_number : float, optional
+        Advective Courant number of the automatic step.
+    threads : int, optional
         Transform threads.
     """
+    given = {
+        "case": {"name": case, "alpha_rad": alpha_rad},
+        "numerics": {"truncation": truncation, "hyperdiffusion_days": hyperdiffusion_days,
+                     "hyperdiffusion_order": hyperdiffusion_order, "time_step_s": time_step_s,
+                     "courant_number": courant_number, "threads": threads},
+        "run": {"days": days, "output_interval_days": output_interval_days},
+    }
+    data = {section: {k: v for k, v in keys.items() if v is not None}
+            for section, keys in given.items()}
     if case not in CASES:
-        from torrid.io.config import ConfigError
-
         raise ConfigError(f"case = {case!r}: must be one of {', '.join(CASES)}")
-    spec = CASES[case]
-    return ModelConfig(
-        case=CaseConfig(name=case, alpha_rad=alpha_rad),
-        planet=PlanetConfig(),  # the Earth of Williamson et al. (1992)
-        numerics=NumericsConfig(truncation=truncation, hyperdiffusion_days=hyperdiffusion_days,
-                                hyperdiffusion_order=hyperdiffusion_order,
-                                time_step_s=time_step_s, courant_number=courant_number,
-                                threads=threads),
-        run=RunConfig(days=spec.default_days if days is None else days,
-                      output_interval_days=(spec.default_output_interval_days
-                                            if output_interval_days is None
-                                            else output_interval_days),
-                      stop_at_steady_state=False),
-    )
+    return ModelConfig.from_dict(data)
 
 
 def run(config: ModelConfig, output: str | os.PathLike | None = None, *,

@@ -42,6 +42,7 @@ from pathlib import Path
 import numpy as np
 
 from torrid.io.config import ConfigError, ModelConfig, short_repr
+from torrid.io.settings import setting
 from torrid.io.sweepspec import SweepAxis, SweepDimension, SweepSpec, config_keys
 from torrid.io.tomlfile import read_toml
 
@@ -118,6 +119,9 @@ def _axis(where: str, table, keys: dict[str, list[str]]) -> tuple[SweepAxis, str
     if name not in keys[section]:
         raise ConfigError(f"{where}: key = {key!r}: "
                           + _suggest(key, [f"{section}.{k}" for k in keys[section]], "key"))
+    if not setting(key).sweepable:
+        raise ConfigError(f"{where}: key = {key!r}: cannot be swept (it does not change the "
+                          "result; set it in the base configuration)")
     where = f"{where} ({key})"
     given = [g for g in GENERATORS if g in table]
     if len(given) != 1:

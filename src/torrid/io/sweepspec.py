@@ -10,25 +10,18 @@ generated, and a point whose configuration is invalid carries the error instead.
 from __future__ import annotations
 
 import copy
-import dataclasses
 import itertools
-import typing
 from dataclasses import dataclass
 from pathlib import Path
 
 from torrid.io.config import ConfigError, ModelConfig
 from torrid.io.pointfile import config_identifier, point_file_name
+from torrid.io.settings import SECTIONS, section_settings
 
 
 def config_keys() -> dict[str, list[str]]:
-    """The sections of a run configuration and the keys of each."""
-    hints = typing.get_type_hints(ModelConfig)
-    out = {}
-    for f in dataclasses.fields(ModelConfig):
-        cls = next(t for t in typing.get_args(hints[f.name]) or (hints[f.name],)
-                   if dataclasses.is_dataclass(t))
-        out[f.name] = [g.name for g in dataclasses.fields(cls)]
-    return out
+    """The sections of a run configuration and the keys of each (the settings table)."""
+    return {section: [s.name for s in section_settings(section)] for section in SECTIONS}
 
 
 @dataclass(frozen=True)

@@ -8,7 +8,8 @@ from __future__ import annotations
 
 from dataclasses import dataclass
 
-from torrid.physics.diagnostics import DIAGNOSTIC_VARIABLES
+from torrid.physics.invariants import CORE_DIAGNOSTICS
+from torrid.physics.processes import REGISTRY
 
 
 @dataclass(frozen=True)
@@ -43,19 +44,11 @@ VARIABLES: dict[str, Variable] = {
     "divergence": Variable(MAP, "s-1", "horizontal divergence", "divergence_of_wind"),
     "surface_height": Variable(("lat", "lon"), "m", "height of the bottom topography",
                                "surface_altitude"),
-    "mean_thickness": Variable(("time",), "m", "global-mean layer thickness (mass per area / density)"),
-    "total_energy": Variable(("time",), "m3 s-2",
-                             "global mean of kinetic plus potential energy per unit density"),
-    "potential_enstrophy": Variable(("time",), "m-1 s-2", "global mean potential enstrophy"),
-    "substellar_longitude": Variable(("time",), "degrees_east", "longitude of the substellar point"),
-    "star_distance_ratio": Variable(("time",), "1", "star-planet distance over the semi-major axis"),
-    "mean_mass_source": Variable(("time",), "m s-1",
-                                 "global mean of the thickness source Q = (h_eq - h) / tau_rad"),
 }
-#: Hot-planet runs add the diagnostics of torrid.physics.diagnostics as time series.
-VARIABLES.update({name: Variable(("time",), units, long_name)
-                  for name, (units, long_name) in DIAGNOSTIC_VARIABLES.items()
-                  if name not in VARIABLES})
+#: The diagnostic time series: those of every run, then those each process declares.
+for _diagnostics in (CORE_DIAGNOSTICS, *(process.diagnostic_variables for process in REGISTRY)):
+    VARIABLES.update({name: Variable(("time",), d.units, d.long_name, d.standard_name)
+                      for name, d in _diagnostics.items()})
 
 
 def markdown_table() -> str:

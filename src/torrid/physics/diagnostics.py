@@ -39,7 +39,7 @@ import ducc0
 import numpy as np
 
 from torrid.physics.curvefeatures import wrap_degrees
-from torrid.physics.tendencies import DIVERGENCE, GEOPOTENTIAL, VORTICITY
+from torrid.physics.state import DIVERGENCE, GEOPOTENTIAL, VORTICITY
 from torrid.physics.transforms import Transforms
 
 #: Half-width of the equatorial band whose cos(lat)-weighted mean gives the harmonic hotspot
@@ -71,8 +71,6 @@ DIAGNOSTIC_VARIABLES: dict[str, tuple[str, str]] = {
     "day_night_contrast": (
         "1", "day-minus-night mean thickness relative to that of the radiative equilibrium"),
     "equatorial_zonal_wind": ("m s-1", "zonal-mean eastward wind on the equator"),
-    "max_wind_speed": ("m s-1", "maximum wind speed on the model grid"),
-    "mean_thickness": ("m", "global-mean layer thickness"),
     "kinetic_energy": ("m3 s-2", "global mean of h |v|^2 / 2"),
     "available_potential_energy": ("m3 s-2", "global mean of g (h - mean h)^2 / 2"),
     "limb_wind_east": ("km s-1", f"{_LIMB} winds on the evening (east, trailing) limb"),
@@ -156,7 +154,7 @@ def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopot
         Substellar longitude lon_sub at this time (rad, east positive; any real value).
     equilibrium_thickness_m : numpy.ndarray, shape (nlat, nlon)
         Radiative-equilibrium thickness h_eq (m) on the model grid (rings north to south,
-        longitudes 2 pi j / nlon), e.g. from :func:`torrid.physics.forcing.equilibrium_thickness`.
+        longitudes 2 pi j / nlon), e.g. from :func:`torrid.physics.processes.relaxation.equilibrium_thickness`.
 
     Returns
     -------
@@ -187,10 +185,6 @@ def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopot
             redistribution. NaN if the equilibrium has no day-night difference.
         ``equatorial_zonal_wind`` (m s-1)
             Zonal mean of u exactly on the equator (spin-1 ring synthesis at colatitude pi/2).
-        ``max_wind_speed`` (m s-1)
-            Maximum of sqrt(u^2 + v^2) over the model grid points.
-        ``mean_thickness`` (m)
-            Global area mean of h.
         ``kinetic_energy`` (m3 s-2)
             Global mean of h |v|^2 / 2.
         ``available_potential_energy`` (m3 s-2)
@@ -278,11 +272,9 @@ def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopot
     nphi_eq = 2 * lmax + 2  # > lmax: the ring mean is the m = 0 part alone
     u_equator = _ring_synthesis(wind_lm, lmax, np.array([np.pi / 2]), nphi_eq, 0.0, spin=1)[1, 0]
     out["equatorial_zonal_wind"] = float(np.mean(u_equator))
-    out["max_wind_speed"] = float(np.sqrt(np.max(speed2)))
 
     # global integrals
     h_mean = grid.global_mean(h)
-    out["mean_thickness"] = h_mean
     out["kinetic_energy"] = grid.global_mean(0.5 * h * speed2)
     out["available_potential_energy"] = grid.global_mean(0.5 * g * (h - h_mean) ** 2)
 

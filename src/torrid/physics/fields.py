@@ -4,7 +4,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from torrid.physics.tendencies import DIVERGENCE, GEOPOTENTIAL, VORTICITY
+from torrid.physics.state import DIVERGENCE, GEOPOTENTIAL, VORTICITY
 from torrid.physics.transforms import Transforms
 
 

@@ -2,36 +2,25 @@
 
 For each coefficient of total wavenumber l, with k_l = l (l + 1) / a^2,
 
-    d zeta  / dt = -(nu_l + r_drag) zeta
-    d delta / dt = -(nu_l + r_drag) delta + k_l phi'
-    d phi'  / dt = -Phi_mean delta - (nu_l + r_rad) phi'
+    d zeta  / dt = -a_zeta zeta
+    d delta / dt = -a_delta delta + k_l phi'
+    d phi'  / dt = -Phi_mean delta - a_phi phi'
 
-where nu_l is the hyperdiffusion rate, r_drag = 1 / tau_drag the Rayleigh drag rate and
-r_rad = 1 / tau_rad the Newtonian relaxation rate (all s^-1, zero when off). The implicit stage
-equation (I - c L) x = b is solved in closed form (a 2 x 2 system for delta and phi' per l).
+where a_zeta, a_delta, a_phi (s^-1) are the sums of the processes' implicit rates
+(:meth:`torrid.physics.processes.base.Process.implicit_rates`: hyperdiffusion nu_l, Rayleigh
+drag 1 / tau_drag, Newtonian relaxation 1 / tau_rad, ...). The implicit stage equation
+(I - c L) x = b is solved in closed form (a 2 x 2 system for delta and phi' per l).
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Iterable
 
 import numpy as np
 
-from torrid.physics.tendencies import DIVERGENCE, GEOPOTENTIAL, VORTICITY
-
-
-def hyperdiffusion_rates(degree: np.ndarray, truncation: int, efolding_time_s: float,
-                         order: int) -> np.ndarray:
-    """Rates nu_l (s^-1) of a del^(2 p) hyperdiffusion, 1 / efolding_time_s at l = truncation.
-
-    nu_l = [l (l + 1) / (N (N + 1))]^p / tau, so the smallest resolved scale decays in tau and
-    larger scales far more slowly (scale-selective). tau = inf switches it off.
-    """
-    if not efolding_time_s > 0:
-        raise ValueError(f"hyperdiffusion e-folding time must be > 0 s, got {efolding_time_s}")
-    l = np.asarray(degree, dtype=float)
-    n = float(truncation)
-    return (l * (l + 1) / (n * (n + 1))) ** order / efolding_time_s
+from torrid.physics.processes.base import ImplicitRates
+from torrid.physics.state import DIVERGENCE, GEOPOTENTIAL, VORTICITY
 
 
 @dataclass(frozen=True, eq=False)
@@ -44,43 +33,51 @@ class LinearTerms:
         k_l = l (l + 1) / a^2 per coefficient (m^-2).
     mean_geopotential : float
         Phi_mean (m^2 s^-2).
-    hyperdiffusion : ndarray
-        nu_l per coefficient (s^-1).
-    drag_rate, relaxation_rate : float
-        1 / tau_drag and 1 / tau_rad (s^-1), 0 when off.
+    vorticity_damping, divergence_damping, thickness_damping : ndarray
+        a_zeta, a_delta, a_phi per coefficient (s^-1).
     """
 
     laplacian_factor: np.ndarray
     mean_geopotential: float
-    hyperdiffusion: np.ndarray
-    drag_rate: float = 0.0
-    relaxation_rate: float = 0.0
+    vorticity_damping: np.ndarray
+    divergence_damping: np.ndarray
+    thickness_damping: np.ndarray
 
-    @property
-    def momentum_damping(self) -> np.ndarray:
-        return self.hyperdiffusion + self.drag_rate
-
-    @property
-    def thickness_damping(self) -> np.ndarray:
-        return self.hyperdiffusion + self.relaxation_rate
+    @classmethod
+    def from_rates(cls, laplacian_factor: np.ndarray, mean_geopotential: float,
+                   rates: Iterable[ImplicitRates | None]) -> "LinearTerms":
+        """The operator of the gravity waves plus the sum of the given rates (in order)."""
+        total = {name: np.zeros(np.shape(laplacian_factor))
+                 for name in ("vorticity", "divergence", "thickness")}
+        for rate in rates:
+            if rate is None:
+                continue
+            for name in total:
+                value = getattr(rate, name)
+                if value is not None:
+                    total[name] = total[name] + value
+        return cls(laplacian_factor=laplacian_factor, mean_geopotential=mean_geopotential,
+                   vorticity_damping=total["vorticity"], divergence_damping=total["divergence"],
+                   thickness_damping=total["thickness"])
 
     def apply(self, state: np.ndarray, out: np.ndarray) -> np.ndarray:
         """out = L state."""
-        am, ap = self.momentum_damping, self.thickness_damping
-        out[VORTICITY] = -am * state[VORTICITY]
-        out[DIVERGENCE] = -am * state[DIVERGENCE] + self.laplacian_factor * state[GEOPOTENTIAL]
-        out[GEOPOTENTIAL] = -self.mean_geopotential * state[DIVERGENCE] - ap * state[GEOPOTENTIAL]
+        out[VORTICITY] = -self.vorticity_damping * state[VORTICITY]
+        out[DIVERGENCE] = (-self.divergence_damping * state[DIVERGENCE]
+                           + self.laplacian_factor * state[GEOPOTENTIAL])
+        out[GEOPOTENTIAL] = (-self.mean_geopotential * state[DIVERGENCE]
+                             - self.thickness_damping * state[GEOPOTENTIAL])
         return out
 
     def solver(self, c: float) -> "ImplicitSolver":
         """Precomputed solver of (I - c L) x = b for a fixed c = dt * a_ii (s)."""
-        am, ap = self.momentum_damping, self.thickness_damping
+        az, ad, ap = self.vorticity_damping, self.divergence_damping, self.thickness_damping
         k, phi = self.laplacian_factor, self.mean_geopotential
-        det = (1 + c * am) * (1 + c * ap) + c * c * k * phi
+        det = (1 + c * ad) * (1 + c * ap) + c * c * k * phi
         return ImplicitSolver(
-            vorticity=1.0 / (1 + c * am),
+            vorticity=1.0 / (1 + c * az),
             dd=(1 + c * ap) / det, dp=c * k / det,
-            pd=-c * phi / det, pp=(1 + c * am) / det,
+            pd=-c * phi / det, pp=(1 + c * ad) / det,
         )
 
 

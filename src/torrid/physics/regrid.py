@@ -33,7 +33,7 @@ import ducc0
 import numpy as np
 from scipy.sparse.linalg import LinearOperator, cg
 
-from torrid.physics.tendencies import DIVERGENCE, GEOPOTENTIAL, VORTICITY
+from torrid.physics.state import DIVERGENCE, GEOPOTENTIAL, VORTICITY
 from torrid.physics.transforms import Transforms
 
 __all__ = ["FitNotConvergedError", "fit_scalar", "fit_winds", "fit_state"]

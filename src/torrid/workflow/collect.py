@@ -32,6 +32,7 @@ import torrid
 from torrid.io.config import ConfigError, ModelConfig
 from torrid.io.pointfile import FINISHED, read_point
 from torrid.io.runfile import write_atomic
+from torrid.io.settings import setting
 from torrid.io.sweepmanifest import read_manifest
 from torrid.io.variables import COORDINATES, VARIABLES
 
@@ -42,9 +43,6 @@ FORCING = {
     "nightside_thickness_m": {"units": "m", "long_name": "nightside equilibrium thickness H"},
     "forcing_contrast": {"units": "1", "long_name": "forcing contrast dH / H"},
 }
-#: Units of a configuration key from its name's suffix (longest first).
-_UNIT_SUFFIXES = (("_m2_s2", "m2 s-2"), ("_m_s2", "m s-2"), ("_days", "days"), ("_deg", "degree"),
-                  ("_rad", "rad"), ("_s", "s"), ("_m", "m"))
 
 
 def table_path(folder: str | os.PathLike, name: str) -> Path:
@@ -52,24 +50,17 @@ def table_path(folder: str | os.PathLike, name: str) -> Path:
     return Path(folder) / f"{name}-table.nc"
 
 
-def key_units(key: str) -> str:
-    """CF units of a configuration key, read from its name (``1`` if it has none)."""
-    for suffix, units in _UNIT_SUFFIXES:
-        if key.endswith(suffix):
-            return units
-    return "1"
-
-
 def _coordinate(axis: dict, dim: str) -> xr.Variable:
+    """A swept dimension's coordinate, with its units and label from the settings table."""
     values = axis["values"]
-    attrs = {"long_name": f"swept configuration key {axis['key']}", "config_key": axis["key"],
-             "spacing": axis["spacing"]}
+    row = setting(axis["key"])
+    attrs = {"long_name": row.label, "config_key": axis["key"], "spacing": axis["spacing"]}
     if all(isinstance(v, str) for v in values):
         data = np.array(values, dtype=object)
     else:
         data = np.array(values)
         if data.dtype != bool:
-            attrs["units"] = key_units(axis["key"])
+            attrs["units"] = row.unit
     return xr.Variable((dim,), data, attrs)
 
 

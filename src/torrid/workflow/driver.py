@@ -186,13 +186,12 @@ def integrate(model: Model, progress: bool = True, label: str = "",
     attrs.update(run_status=status, run_status_reason=reason or "ran the configured days",
                  time_step_changes="; ".join(f"day {d:g}: {dt:.6g} s" for d, dt in run.dt_changes)
                  or "none")
-    if model.forcing is not None:
+    if model.is_planet:
         steady_day = run.times_days[-1] if status == "steady" else None
         attrs.update(planet_attrs(model, run.times_days, run.series, criterion,
                                   config.run.stop_at_steady_state, steady_day))
-    series = {k: v for k, v in run.series.items() if k != "max_speed"}
     attrs["summary"] = summary.line(model.label)
-    ds = build_dataset(run.times_days, lat, lon, series, static, attrs)
+    ds = build_dataset(run.times_days, lat, lon, run.series, static, attrs)
     if problem is not None:
         raise RunFailedError(problem.message(), ds)
     return ds, summary
@@ -200,7 +199,7 @@ def integrate(model: Model, progress: bool = True, label: str = "",
 
 def steady_criterion(model: Model) -> SteadyCriterion | None:
     """The steady-state test (and averaging window) of a planet run; None for a case."""
-    if model.forcing is None:
+    if not model.is_planet:
         return None
     run = model.config.run
     rotation_days = (2 * math.pi / abs(model.rotation_rate_s) / SECONDS_PER_DAY

@@ -8,10 +8,11 @@ from dataclasses import dataclass
 import numpy as np
 
 from torrid.io.provenance import provenance_attrs
-from torrid.physics import invariants
 from torrid.physics.curvefeatures import unwrap_degrees, wrap_degrees
-from torrid.physics.diagnostics import DIAGNOSTIC_VARIABLES, planet_diagnostics
+from torrid.physics.diagnostic_metadata import Diagnostic
 from torrid.physics.fields import grid_state
+from torrid.physics.invariants import CORE_DIAGNOSTICS, core_diagnostics
+from torrid.physics.processes import Snapshot
 from torrid.workflow.setup import Model
 from torrid.workflow.steady import SteadyCriterion, window_means
 
@@ -52,44 +53,34 @@ def output_coordinates(model: Model) -> tuple[np.ndarray, np.ndarray]:
     return lat, lon
 
 
-def planet_snapshot(model: Model, state: np.ndarray, time_s: float,
-                    geopotential_deviation: np.ndarray) -> dict[str, float]:
-    """Hot-planet diagnostics of one state at ``time_s`` (s); ``geopotential_deviation`` is the
-    state's phi' on the model grid (m^2 s^-2), already synthesised by the caller."""
-    forcing = model.forcing
-    lon_sub, _ = forcing.state_at(time_s)
-    h_eq = forcing.equilibrium(time_s) / model.gravity_m_s2
-    out = planet_diagnostics(model.transforms, state, mean_geopotential=model.mean_geopotential,
-                             gravity_m_s2=model.gravity_m_s2,
-                             rotation_rate_s=model.rotation_rate_s,
-                             substellar_longitude_rad=lon_sub, equilibrium_thickness_m=h_eq)
-    source = forcing.heating(time_s, geopotential_deviation)
-    out["mean_mass_source"] = model.grid.global_mean(source) / model.gravity_m_s2
-    out["substellar_longitude"] = float(np.degrees(lon_sub))
-    out["star_distance_ratio"] = float(model.orbit.distance_ratio(time_s))
-    return out
-
-
 def snapshot(model: Model, state: np.ndarray, time_s: float = 0.0) -> dict[str, np.ndarray | float]:
-    """Output fields and global invariants of one state (output-grid orientation)."""
+    """Output fields (output-grid orientation) and diagnostics of one state at ``time_s`` (s):
+    the core diagnostics of every run, then those of each process."""
     fields = grid_state(model.transforms, state)
     g = model.gravity_m_s2
     thickness = (fields["geopotential_deviation"] + model.mean_geopotential) / g
-    grid = model.grid
     out = {
         "h": thickness + model.surface_height_m,
         "u": fields["u"], "v": fields["v"],
         "vorticity": fields["vorticity"], "divergence": fields["divergence"],
     }
     out = {k: to_output_grid(v) for k, v in out.items()}
-    if model.forcing is not None:
-        out.update(planet_snapshot(model, state, time_s, fields["geopotential_deviation"]))
-    out["max_speed"] = float(np.sqrt(fields["u"] ** 2 + fields["v"] ** 2).max())
-    out["mean_thickness"] = invariants.mean_thickness(grid, thickness)
-    out["total_energy"] = invariants.total_energy(grid, thickness, fields["u"], fields["v"],
-                                                  model.surface_height_m, g)
-    out["potential_enstrophy"] = invariants.potential_enstrophy(
-        grid, thickness, fields["vorticity"], model.dynamics.coriolis)
+    out.update(core_diagnostics(model.grid, thickness, fields["u"], fields["v"],
+                                fields["vorticity"], model.dynamics.coriolis,
+                                model.surface_height_m, g))
+    taken = Snapshot(time_s=time_s, state=state, u=fields["u"], v=fields["v"],
+                     vorticity=fields["vorticity"], divergence=fields["divergence"],
+                     geopotential=fields["geopotential_deviation"])
+    for process in model.processes:
+        out.update(process.diagnostics(taken))
+    return out
+
+
+def diagnostic_metadata(model: Model) -> dict[str, Diagnostic]:
+    """Name -> metadata of every diagnostic the run writes (core first, then its processes)."""
+    out = dict(CORE_DIAGNOSTICS)
+    for process in model.processes:
+        out.update(type(process).diagnostic_variables)
     return out
 
 
@@ -124,9 +115,9 @@ def planet_attrs(model: Model, times_days: list, series: dict, criterion: Steady
     out["final_values"] = (f"time means over the last {window:g} days (the steady-state "
                            "window; whole orbits on eccentric orbits), or the last output if "
                            "the run is shorter")
-    for name in DIAGNOSTIC_VARIABLES:
-        out[f"final_{name}"] = final_value(times_days, series[name], window,
-                                           angle=name.startswith("hotspot"))
+    for name, meta in diagnostic_metadata(model).items():
+        if meta.final and name in series:
+            out[f"final_{name}"] = final_value(times_days, series[name], window, angle=meta.angle)
     return out
 
 
@@ -141,26 +132,31 @@ def relative_change(values: list[float]) -> float:
 
 def run_attrs(model: Model, summary: RunSummary) -> dict:
     grid, case = model.grid, model.case
-    if case is None:
+    references = "; ".join(dict.fromkeys(type(p).reference for p in model.processes
+                                         if type(p).reference))
+    if model.is_planet:
         described = {"title": "torrid run: forced hot gas giant", "case": "planet",
-                     "references": "forcing: Showman & Polvani (2011); "
-                                   "Perez-Becker & Showman (2013)"}
+                     "references": references}
     else:
         described = {"title": f"torrid run: {case.title}", "case": case.name,
                      "references": case.reference}
-    return {
+    out = {
         **described,
         **provenance_attrs(model.config.to_dict()),
         "truncation": f"T{grid.truncation}",
         "grid": f"Gauss-Legendre, {grid.nlat} latitudes x {grid.nlon} longitudes",
         "time_step_s": model.dt,
         "time_scheme": "IMEX Runge-Kutta ARS(4,4,3), gravity waves and damping implicit",
-        "hyperdiffusion": (f"del^{2 * model.hyperdiffusion_order}, e-folding "
-                           f"{model.hyperdiffusion_days:g} days at l = {grid.truncation}"),
+        "processes": ", ".join(p.name for p in model.processes) or "none",
+    }
+    for process in model.processes:
+        out.update(process.attrs())
+    out.update({
         "mean_geopotential_m2_s2": model.mean_geopotential,
         "gravity_m_s2": model.gravity_m_s2,
         "radius_m": model.config.planet.radius_m,
         "rotation_rate_s": model.rotation_rate_s,
         "steps": summary.steps,
         "wall_time_s": round(summary.wall_seconds, 3),
-    }
+    })
+    return out

@@ -14,12 +14,12 @@ from torrid.io.initialfile import read_initial_fields
 from torrid.physics.cases import CASES, CaseSpec
 from torrid.physics.coriolis import coriolis_parameter
 from torrid.physics.fields import spectral_state
-from torrid.physics.forcing import DayNightForcing
 from torrid.physics.grid import SpectralGrid
-from torrid.physics.linear import LinearTerms, hyperdiffusion_rates
+from torrid.physics.linear import LinearTerms
 from torrid.physics.orbit import Orbit, pseudo_synchronous_ratio
+from torrid.physics.processes import CASE, PLANET, Process, ProcessContext, build_processes
 from torrid.physics.regrid import FitNotConvergedError, fit_state
-from torrid.physics.tendencies import GEOPOTENTIAL
+from torrid.physics.state import GEOPOTENTIAL
 from torrid.physics.tendencies import Dynamics
 from torrid.physics.timestepping import IMEXStepper, automatic_time_step
 from torrid.physics.transforms import Transforms
@@ -33,6 +33,7 @@ class Model:
     case: CaseSpec | None  # None for a hot-planet run
     grid: SpectralGrid
     transforms: Transforms
+    processes: tuple[Process, ...]
     dynamics: Dynamics
     linear: LinearTerms
     stepper: IMEXStepper
@@ -41,10 +42,7 @@ class Model:
     gravity_m_s2: float
     mean_geopotential: float  # m^2 s^-2
     rotation_rate_s: float
-    hyperdiffusion_days: float
-    hyperdiffusion_order: int
     steps_per_output: int
-    forcing: DayNightForcing | None = None
     orbit: Orbit | None = None
 
     @property
@@ -53,9 +51,18 @@ class Model:
         return self.stepper.dt
 
     @property
+    def is_planet(self) -> bool:
+        """True for a forced hot-planet run (the configuration's one test)."""
+        return self.config.is_planet
+
+    @property
     def label(self) -> str:
         """Short name of what is run."""
         return self.case.name if self.case else "planet"
+
+    def process(self, name: str) -> Process | None:
+        """The run's process called ``name`` (None if it is absent)."""
+        return next((p for p in self.processes if p.name == name), None)
 
 
 @dataclass(frozen=True)
@@ -70,34 +77,12 @@ class _Start:
     mean_geopotential: float
     reference_speed_m_s: float
     rotation_rate_s: float
-    drag_rate: float = 0.0
-    relaxation_rate: float = 0.0
-    forcing: DayNightForcing | None = None
     orbit: Orbit | None = None
 
 
-#: Hot-planet runs: del^8 hyperdiffusion with this e-folding time at the truncation scale (days),
-#: chosen (common practice) to damp grid-scale noise near the day-night front in a few steps.
-PLANET_HYPERDIFFUSION_DAYS = 0.1
-PLANET_HYPERDIFFUSION_ORDER = 4
 #: Hot-planet runs start from rest; the automatic step assumes winds up to this multiple of
 #: the gravity-wave speed sqrt(g H) (the equatorial jets of such runs reach about 1-2 c).
 PLANET_SPEED_OVER_WAVE_SPEED = 2.0
-
-
-def resolved_hyperdiffusion(config: ModelConfig, case: CaseSpec | None) -> tuple[float, int]:
-    """The hyperdiffusion e-folding time (days) and order p: the configuration's or the
-    default of the case (or of planet runs)."""
-    n = config.numerics
-    days = n.hyperdiffusion_days
-    if days is None:
-        if case is None:
-            days = PLANET_HYPERDIFFUSION_DAYS
-        else:
-            d = case.default_hyperdiffusion_days
-            days = d(n.truncation) if callable(d) else d
-    default_order = PLANET_HYPERDIFFUSION_ORDER if case is None else case.default_hyperdiffusion_order
-    return float(days), int(n.hyperdiffusion_order or default_order)
 
 
 def choose_time_step(config: ModelConfig, max_speed_m_s: float) -> tuple[float, int]:
@@ -151,16 +136,13 @@ def _case_start(config: ModelConfig, grid: SpectralGrid) -> _Start:
     )
 
 
-def _planet_start(config: ModelConfig, grid: SpectralGrid, transforms: Transforms) -> _Start:
+def _planet_start(config: ModelConfig, grid: SpectralGrid) -> _Start:
     atm, planet = config.atmosphere, config.planet
     omega, period_s = rotation_rate(config)
     orbit = Orbit(orbital_period_s=period_s, eccentricity=config.orbit.eccentricity,
                   rotation_rate_s=omega,
                   initial_mean_anomaly_rad=math.radians(config.orbit.initial_mean_anomaly_deg))
     phi = atm.mean_geopotential_m2_s2
-    forcing = DayNightForcing(transforms, orbit, phi, atm.forcing_contrast,
-                              atm.radiative_timescale_days * SECONDS_PER_DAY,
-                              config.orbit.distance_exponent)
     lat, lon = grid.mesh()
     zeros = np.zeros(grid.shape)
     return _Start(
@@ -168,9 +150,7 @@ def _planet_start(config: ModelConfig, grid: SpectralGrid, transforms: Transform
         surface_height_m=zeros, coriolis=coriolis_parameter(lat, lon, omega, 0.0),
         mean_geopotential=phi,
         reference_speed_m_s=PLANET_SPEED_OVER_WAVE_SPEED * math.sqrt(phi),
-        rotation_rate_s=omega,
-        drag_rate=1.0 / (atm.drag_timescale_days * SECONDS_PER_DAY),
-        relaxation_rate=forcing.rate, forcing=forcing, orbit=orbit,
+        rotation_rate_s=omega, orbit=orbit,
     )
 
 
@@ -196,32 +176,29 @@ def build_model(config: ModelConfig) -> Model:
     """Build the model of ``config`` with its initial state."""
     grid = SpectralGrid(config.numerics.truncation)
     transforms = Transforms(grid, config.planet.radius_m, config.numerics.threads)
-    if config.is_planet:
-        start = _planet_start(config, grid, transforms)
-    else:
-        start = _case_start(config, grid)
+    start = _planet_start(config, grid) if config.is_planet else _case_start(config, grid)
     g = config.planet.gravity_m_s2
     if config.run.initial_fields:
         state, start = _from_file(config, transforms, start)
     else:
         state = spectral_state(transforms, start.u, start.v,
                                g * start.thickness_m - start.mean_geopotential)
-    dynamics = Dynamics(transforms, start.coriolis, start.mean_geopotential,
-                        surface_geopotential=g * start.surface_height_m, forcing=start.forcing)
     case = None if config.is_planet else CASES[config.case.name]
-    days, order = resolved_hyperdiffusion(config, case)
+    context = ProcessContext(kind=PLANET if config.is_planet else CASE, transforms=transforms,
+                             gravity_m_s2=g, mean_geopotential=start.mean_geopotential,
+                             rotation_rate_s=start.rotation_rate_s,
+                             surface_height_m=start.surface_height_m, orbit=start.orbit,
+                             case=case)
+    processes = build_processes(config.get, context)
+    dynamics = Dynamics(transforms, start.coriolis, start.mean_geopotential, processes)
     l = grid.degree.astype(float)
-    linear = LinearTerms(
-        laplacian_factor=l * (l + 1) / config.planet.radius_m**2,
-        mean_geopotential=start.mean_geopotential,
-        hyperdiffusion=hyperdiffusion_rates(l, grid.truncation, days * SECONDS_PER_DAY, order),
-        drag_rate=start.drag_rate, relaxation_rate=start.relaxation_rate,
-    )
+    linear = LinearTerms.from_rates(l * (l + 1) / config.planet.radius_m**2,
+                                    start.mean_geopotential,
+                                    [p.implicit_rates() for p in processes])
     dt, steps_per_output = choose_time_step(config, start.reference_speed_m_s)
     stepper = IMEXStepper(dynamics, linear, dt, state.shape)
-    return Model(config=config, case=case, grid=grid, transforms=transforms, dynamics=dynamics,
-                 linear=linear, stepper=stepper, initial_state=state,
-                 surface_height_m=start.surface_height_m, gravity_m_s2=g,
+    return Model(config=config, case=case, grid=grid, transforms=transforms,
+                 processes=processes, dynamics=dynamics, linear=linear, stepper=stepper,
+                 initial_state=state, surface_height_m=start.surface_height_m, gravity_m_s2=g,
                  mean_geopotential=start.mean_geopotential, rotation_rate_s=start.rotation_rate_s,
-                 hyperdiffusion_days=days, hyperdiffusion_order=order,
-                 steps_per_output=steps_per_output, forcing=start.forcing, orbit=start.orbit)
+                 steps_per_output=steps_per_output, orbit=start.orbit)

@@ -6,21 +6,36 @@ import argparse
 import sys
 from pathlib import Path
 
-from torrid.api import build_case_config, run
+from torrid.api import run
 from torrid.io.config import ConfigError, ModelConfig
+from torrid.io.settings import setting
 from torrid.io.tomlfile import load_config
 from torrid.physics.cases import CASES
 
 DEFAULT_FOLDER = Path("runs")
 
-#: options that set configuration keys, so that errors name the option the user typed
-OPTION_FOR_KEY = {
-    "numerics.truncation": "--truncation", "run.days": "--days",
-    "run.output_interval_days": "--output-interval", "case.alpha_rad": "--alpha",
-    "numerics.hyperdiffusion_days": "--hyperdiffusion-days", "numerics.time_step_s": "--time-step",
-    "numerics.courant_number": "--courant", "numerics.threads": "--threads",
-    "run.initial_fields": "--initial",
+#: options that set configuration keys (help, type and default come from the settings
+#: table; errors name the option the user typed): key -> (option, metavar, help if not the
+#: table's description)
+OPTIONS = {
+    "numerics.truncation": ("--truncation", "N", ""),
+    "run.days": ("--days", "D", ""),
+    "run.output_interval_days": ("--output-interval", "DAYS", ""),
+    "case.alpha_rad": ("--alpha", "RADIANS", "williamson2 only: tilt of the flow's axis "
+                                             "against the grid pole"),
+    "numerics.hyperdiffusion_days": ("--hyperdiffusion-days", "DAYS", ""),
+    "numerics.time_step_s": ("--time-step", "SECONDS", ""),
+    "numerics.courant_number": ("--courant", "C", ""),
+    "numerics.threads": ("--threads", "N", ""),
+    "run.initial_fields": ("--initial", "FIELDS.nc", "start from h, u, v in this file (any "
+                                                     "lon-lat grid; a run file's last output "
+                                                     "will do), fitted onto the model's "
+                                                     "harmonics"),
 }
+
+
+def _default_text(row) -> str:
+    return f"default: {row.default_description(with_unit=True)}"
 
 
 def add_parser(sub: argparse._SubParsersAction) -> None:
@@ -30,7 +45,9 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
                     "a TOML configuration file (or the built-in default planet when no file is "
                     "given), or a standard test case of the core with --case. Writes a CF-1.10 "
                     "netCDF run file (fields and diagnostics on a schedule in simulated time, "
-                    "the initial state at time 0) and, for planets, a map plot beside it.",
+                    "the initial state at time 0) and, for planets, a map plot beside it. "
+                    "Defaults are the default planet's (torrid settings lists every key); a "
+                    "--case brings its own planet, length, output interval and dissipation.",
         epilog="cases (--case):\n" + "\n".join(f"  {name:22s}{spec.title}"
                                                for name, spec in CASES.items()),
         formatter_class=argparse.RawDescriptionHelpFormatter,
@@ -42,25 +59,12 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
                         "atmosphere.drag_timescale_days=10 (repeatable)")
     p.add_argument("--case", choices=list(CASES), default=None, metavar="CASE",
                    help="run a built-in standard case instead of a planet (listed below)")
-    p.add_argument("--truncation", "-T", type=int, default=None, metavar="N",
-                   help="triangular truncation T_N, e.g. 42, 85, 170 (default: 42)")
-    p.add_argument("--days", type=float, default=None, metavar="D",
-                   help="simulated days; for planets the upper bound of a run that stops at "
-                        "steady state (default: the file's or the case's)")
-    p.add_argument("--output-interval", type=float, default=None, metavar="DAYS",
-                   help="days between written snapshots (default: the file's or the case's)")
-    p.add_argument("--alpha", type=float, default=None, metavar="RADIANS",
-                   help="williamson2 only: tilt of the flow's axis against the grid pole, rad")
-    p.add_argument("--hyperdiffusion-days", type=float, default=None, metavar="DAYS",
-                   help="e-folding time at the truncation scale ('inf' = off)")
-    p.add_argument("--time-step", type=float, default=None, metavar="SECONDS",
-                   help="fixed time step (default: automatic from the Courant number)")
-    p.add_argument("--courant", type=float, default=None, metavar="C",
-                   help="advective Courant number of the automatic time step (default: 1.0)")
-    p.add_argument("--threads", type=int, default=None, help="transform threads (default: 1)")
-    p.add_argument("--initial", default=None, metavar="FIELDS.nc",
-                   help="start from h, u, v in this file (any lon-lat grid; a run file's last "
-                        "output will do), fitted onto the model's harmonics")
+    for key, (option, metavar, extra) in OPTIONS.items():
+        row = setting(key)
+        names = [option, *(["-T"] if option == "--truncation" else [])]
+        p.add_argument(*names, type=row.kind, default=None, metavar=metavar,
+                       dest=key.replace(".", "__"), help=f"{extra or row.description} "
+                                                         f"({key}; {_default_text(row)})")
     p.add_argument("-o", "--output", type=Path, default=None, metavar="FILE.nc",
                    help="run file to write (default: runs/<name>.nc)")
     p.add_argument("--overwrite", action="store_true", help="replace existing output files")
@@ -72,30 +76,35 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
     p.set_defaults(handler=handle)
 
 
+def _given(args: argparse.Namespace) -> dict[str, dict]:
+    """The keys set by options, as sections of plain data."""
+    out: dict[str, dict] = {}
+    for key in OPTIONS:
+        value = getattr(args, key.replace(".", "__"))
+        if value is not None:
+            section, _, name = key.partition(".")
+            out.setdefault(section, {})[name] = value
+    return out
+
+
 def build_config(args: argparse.Namespace) -> tuple[ModelConfig, str]:
     """The configuration the options describe and a default output name for it."""
+    given = _given(args)
     if args.case and args.config_file:
         raise ConfigError(f"--case {args.case} and {args.config_file}: give one or the other")
-    if args.alpha is not None and args.case != "williamson2":
-        raise ConfigError(f"--alpha = {args.alpha!r}: only --case williamson2 takes a tilt angle")
+    if "case" in given and args.case != "williamson2":
+        raise ConfigError(f"--alpha = {given['case']['alpha_rad']!r}: only --case williamson2 "
+                          "takes a tilt angle")
     if args.case:
-        config = build_case_config(args.case, truncation=args.truncation or 42, days=args.days,
-                                   output_interval_days=args.output_interval,
-                                   alpha_rad=args.alpha or 0.0)
+        config = ModelConfig.from_dict({**given, "case": {"name": args.case,
+                                                          **given.get("case", {})}})
         name = f"{args.case}-T{config.numerics.truncation}"
     elif args.config_file:
-        config = load_config(args.config_file)
+        config = load_config(args.config_file).replace(**given)
         name = args.config_file.stem
     else:
-        config = ModelConfig()
+        config = ModelConfig().replace(**given)
         name = "default-planet"
-    numerics = {"truncation": args.truncation, "hyperdiffusion_days": args.hyperdiffusion_days,
-                "time_step_s": args.time_step, "courant_number": args.courant,
-                "threads": args.threads}
-    run_keys = {"days": args.days, "output_interval_days": args.output_interval,
-                "initial_fields": args.initial}
-    config = config.replace(numerics={k: v for k, v in numerics.items() if v is not None},
-                            run={k: v for k, v in run_keys.items() if v is not None})
     for assignment in args.set:
         config = config.with_override(assignment)
     return config, name
@@ -106,7 +115,7 @@ def handle(args: argparse.Namespace) -> int:
         config, name = build_config(args)
     except ConfigError as err:
         message = str(err)
-        for key, option in OPTION_FOR_KEY.items():
+        for key, (option, _, _) in OPTIONS.items():
             if message.startswith(key + " "):
                 message = option + message[len(key):]
         raise ConfigError(message) from None
