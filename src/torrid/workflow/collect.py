@@ -28,12 +28,12 @@ from pathlib import Path
 import numpy as np
 import xarray as xr
 
-import torrid
 from torrid.io.config import ConfigError, ModelConfig
 from torrid.io.pointfile import FINISHED, read_point
 from torrid.io.runfile import write_atomic
 from torrid.io.sweepmanifest import read_manifest
 from torrid.io.variables import COORDINATES, VARIABLES
+from torrid.meta import __version__
 
 MAP_VARIABLES = ("h", "u", "v")
 #: Inputs of each point's forcing that become variables over the sweep (the thickness ->
@@ -226,8 +226,8 @@ def _table_attrs(manifest: dict, status: np.ndarray, finished: list) -> dict:
         "Conventions": "CF-1.10",
         "title": f"torrid sweep table: {manifest['torrid_sweep']}",
         "torrid_sweep": manifest["torrid_sweep"],
-        "source": f"torrid {torrid.__version__}",
-        "torrid_version": torrid.__version__,
+        "source": f"torrid {__version__}",
+        "torrid_version": __version__,
         "date_created": _now(),
         "sweep_dimensions_json": json.dumps(manifest["dimensions"], allow_nan=True),
         "sweep_base_configuration_json": json.dumps(manifest["base_configuration"],

@@ -41,11 +41,11 @@ import warnings
 import numpy as np
 import xarray as xr
 
-import torrid
 from torrid.io.config import SECONDS_PER_DAY, ModelConfig
 from torrid.io.observer import (ASTRONOMICAL_UNIT_M, SOLAR_RADIUS_M, ObserverError,
                                 ObserverSettings, read_response)
 from torrid.io.provenance import config_from_attrs, provenance_attrs
+from torrid.meta import TorridWarning
 from torrid.physics.curvefeatures import first_harmonic, parabolic_extremum, wrap_degrees
 from torrid.physics.disk import DiskQuadrature
 from torrid.physics.orbit import Orbit
@@ -228,7 +228,7 @@ def _time_series_disk(ds, settings, orbit: Orbit, quad: DiskQuadrature, band: Ba
     if spacing > period / MIN_SNAPSHOTS_PER_ORBIT:
         warnings.warn(f"{source}: snapshots {spacing / SECONDS_PER_DAY:g} days apart over an orbit "
                       f"of {period / SECONDS_PER_DAY:g} days: the phase curve interpolates a "
-                      "coarse time series", torrid.TorridWarning, stacklevel=4)
+                      "coarse time series", TorridWarning, stacklevel=4)
     k = np.clip(np.searchsorted(times_s, t, side="right") - 1, 0, times_s.size - 2)
     alpha = (t - times_s[k]) / (times_s[k + 1] - times_s[k])
     used, local = np.unique(np.concatenate([k, k + 1]), return_inverse=True)
