@@ -1,33 +1,88 @@
-"""The one table of output variables: dimensions, units, long_name and CF standard_name.
+"""The one table of output variables of every file torrid writes: dimensions, units, long_name
+and CF standard_name.
 
-Every netCDF attribute and the variable list in the README come from :data:`VARIABLES`;
-other tools rely on these names, so they are fixed.
+One row per variable and file kind: run files (:data:`COORDINATES`, :data:`VARIABLES`),
+phase-curve files (:data:`PHASE_VARIABLES`), fit files (:data:`FIT_VARIABLES`) and sweep tables
+(:data:`SWEEP_VARIABLES`). Every netCDF variable attribute these files carry and the variable
+tables in the README come from here (``python -m torrid.io.variables``); other tools rely on
+these names, so they are fixed. :data:`PARAMETERS` in a row's dims stands for the swept
+dimensions (those of the sweep table; none for a phase curve of a single run). The swept
+coordinates themselves describe their configuration key (``torrid.workflow.collect``).
 """
 
 from __future__ import annotations
 
 from dataclasses import dataclass
+from typing import Sequence
 
-from torrid.physics.diagnostics import DIAGNOSTIC_VARIABLES
+import numpy as np
+import xarray as xr
+
+# --- The source of the diagnostics rows (one place; the run files' time series and the sweep
+# table's final values both derive from it): name -> (units, long_name).
+from torrid.physics.diagnostics import DIAGNOSTIC_VARIABLES as DIAGNOSTIC_ROWS
+
+#: Placeholder in :attr:`Variable.dims` for the swept (parameter) dimensions.
+PARAMETERS = "(parameters)"
 
 
 @dataclass(frozen=True)
 class Variable:
-    """Metadata of one output variable (CF-1.10 attributes)."""
+    """Metadata of one output variable (CF-1.10 attributes).
+
+    ``units`` is None for string and flag (boolean) variables, which have no units.
+    """
 
     dims: tuple[str, ...]
-    units: str
+    units: str | None
     long_name: str
     standard_name: str | None = None
 
     def attrs(self) -> dict[str, str]:
         """The netCDF attributes of the variable."""
-        out = {"units": self.units, "long_name": self.long_name}
+        out = {} if self.units is None else {"units": self.units}
+        out["long_name"] = self.long_name
         if self.standard_name:
             out["standard_name"] = self.standard_name
         return out
 
+    def dims_over(self, parameters: Sequence[str] = ()) -> tuple[str, ...]:
+        """The dims with :data:`PARAMETERS` replaced by ``parameters`` (the swept dims)."""
+        out: list[str] = []
+        for dim in self.dims:
+            if dim == PARAMETERS:
+                out.extend(parameters)
+            else:
+                out.append(dim)
+        return tuple(out)
 
+    def variable(self, values, parameters: Sequence[str] = ()):
+        """The row as an xarray variable holding ``values``.
+
+        Parameters
+        ----------
+        values : array_like or xarray.DataArray
+            The data. A DataArray (which keeps its coordinates) must already be on the row's
+            dims; any other array becomes an ``xarray.Variable`` on them.
+        parameters : sequence of str
+            The swept dims that :data:`PARAMETERS` stands for.
+
+        Returns
+        -------
+        xarray.Variable or xarray.DataArray
+            With the row's attributes as its only attributes.
+        """
+        dims = self.dims_over(parameters)
+        if isinstance(values, xr.DataArray):
+            if values.dims != dims:
+                raise ValueError(f"{self.long_name!r}: dims {values.dims}, the table says {dims}")
+            out = values.copy(deep=False)
+            out.attrs = self.attrs()
+            return out
+        return xr.Variable(dims, np.asarray(values), self.attrs())
+
+
+# --- run files --------------------------------------------------------------------------------
 MAP = ("time", "lat", "lon")
 COORDINATES: dict[str, Variable] = {
     "time": Variable(("time",), "days", "simulated time since the start of the run", "time"),
@@ -52,10 +107,102 @@ VARIABLES: dict[str, Variable] = {
     "mean_mass_source": Variable(("time",), "m s-1",
                                  "global mean of the thickness source Q = (h_eq - h) / tau_rad"),
 }
-#: Hot-planet runs add the diagnostics of torrid.physics.diagnostics as time series.
+#: Hot-planet runs add the diagnostics (DIAGNOSTIC_ROWS above) as time series.
 VARIABLES.update({name: Variable(("time",), units, long_name)
-                  for name, (units, long_name) in DIAGNOSTIC_VARIABLES.items()
+                  for name, (units, long_name) in DIAGNOSTIC_ROWS.items()
                   if name not in VARIABLES})
+
+# --- phase-curve files (torrid.workflow.phase) ------------------------------------------------
+_P = (PARAMETERS,)
+_CURVE = (PARAMETERS, "phase")
+_MAP_OFFSET = ", east positive in grid longitude"
+PHASE_VARIABLES: dict[str, Variable] = {
+    "phase": Variable(("phase",), "1", "orbital phase (time since mid-transit over the period; "
+                                       "0: mid-transit)"),
+    "flux_ratio": Variable(_CURVE, "ppm", "planet-to-star flux ratio in the band"),
+    "brightness_temperature": Variable(
+        _CURVE, "K", "band brightness temperature of the planet's disk-averaged intensity"),
+    "sub_observer_longitude": Variable(("phase",), "degree",
+                                       "sub-observer longitude east of the substellar point"),
+    "time": Variable(("phase",), "days", "simulated time of each phase sample"),
+    "eclipse_depth": Variable(_P, "ppm", "flux ratio at mid-eclipse"),
+    "nightside_flux": Variable(_P, "ppm", "flux ratio at mid-transit"),
+    "amplitude": Variable(_P, "ppm", "peak-to-peak amplitude of the curve"),
+    "maximum_flux_ratio": Variable(_P, "ppm", "maximum of the flux ratio"),
+    "minimum_flux_ratio": Variable(_P, "ppm", "minimum of the flux ratio"),
+    "phase_of_maximum": Variable(_P, "1", "orbital phase of the maximum"),
+    "phase_of_minimum": Variable(_P, "1", "orbital phase of the minimum"),
+    "offset_of_maximum": Variable(_P, "degree",
+                                  "(eclipse phase - phase of maximum) x 360 (east positive)"),
+    "offset_of_minimum": Variable(_P, "degree", "(transit phase - phase of minimum) x 360"),
+    "mean_flux_ratio": Variable(_P, "ppm", "orbit-mean flux ratio"),
+    "harmonic_amplitude": Variable(_P, "ppm", "peak-to-peak amplitude of the first harmonic"),
+    "harmonic_offset": Variable(_P, "degree", "(eclipse phase - phase of the first harmonic's "
+                                              "maximum) x 360"),
+    "eclipse_phase": Variable((), "1", "orbital phase of mid-eclipse"),
+    "map_hotspot_offset": Variable(
+        _P, "degree", f"the map's hotspot offset (equatorial maximum){_MAP_OFFSET}"),
+    "map_hotspot_offset_harmonic": Variable(
+        _P, "degree",
+        f"the map's hotspot offset (first harmonic of the equatorial band){_MAP_OFFSET}"),
+}
+
+# --- fit files (torrid.workflow.fit) ----------------------------------------------------------
+FIT_VARIABLES: dict[str, Variable] = {
+    "phase": PHASE_VARIABLES["phase"],
+    "observed_phase": Variable(("observation",), "1",
+                               "orbital phase of each measured point (0: mid-transit)"),
+    "chi_square": Variable(_P, "1", "chi-square against the observation"),
+    "delta_chi_square": Variable(_P, "1", "chi-square minus its minimum"),
+    "within_68": Variable(_P, None, "inside the 68.27 % joint region (delta chi-square <= 2.30)"),
+    "within_95": Variable(_P, None, "inside the 95.45 % joint region (delta chi-square <= 6.18)"),
+    "best_flux_ratio": Variable(("phase",), "ppm", "phase curve of the best grid point"),
+    "observed_flux_ratio": Variable(("observation",), "ppm", "measured flux ratio"),
+    "observed_error": Variable(("observation",), "ppm", "1-sigma error of the measured flux ratio"),
+    "consistent": Variable(_P, None,
+                           "reproduces the measured offset and amplitude within their errors"),
+}
+
+# --- sweep tables (torrid.workflow.collect) ---------------------------------------------------
+#: The maps a sweep table holds with ``maps``.
+SWEEP_MAPS = ("h", "u", "v")
+SWEEP_VARIABLES: dict[str, Variable] = {
+    "lat": COORDINATES["lat"],
+    "lon": COORDINATES["lon"],
+    **{name: Variable(_P, VARIABLES[name].units, f"{VARIABLES[name].long_name} (final value)")
+       for name in DIAGNOSTIC_ROWS},
+    "steady_state_reached": Variable(_P, "1", "1 if the run stopped at its steady state, 0 if it "
+                                              "ran its days (NaN: no run)"),
+    "steady_state_time_days": Variable(_P, "days",
+                                       "simulated day at which the steady state was reached"),
+    "run_status": Variable(_P, None, "status of the point: complete, steady, failed or missing"),
+    "run_status_reason": Variable(_P, None, "why the point has its status"),
+    "run_file": Variable(_P, None, "the point's run file in the sweep folder (named by its "
+                                   "configuration)"),
+    "nightside_thickness_m": Variable(_P, "m", "nightside equilibrium thickness H"),
+    "forcing_contrast": Variable(_P, "1", "forcing contrast dH / H"),
+    **{name: Variable((PARAMETERS, "lat", "lon"), VARIABLES[name].units,
+                      f"{VARIABLES[name].long_name}, at the last output",
+                      VARIABLES[name].standard_name)
+       for name in SWEEP_MAPS},
+}
+
+
+def final_value_row(name: str) -> Variable:
+    """The sweep-table row of the final value of diagnostic ``name``; a diagnostic this table
+    does not know (a point file of another version) gets a row without units."""
+    if name in DIAGNOSTIC_ROWS:
+        return SWEEP_VARIABLES[name]
+    return Variable(_P, None, f"final {name}")
+
+
+#: Every table by file kind, as the README shows them.
+TABLES: dict[str, dict[str, Variable]] = {
+    "run": {**COORDINATES, **VARIABLES},
+    "phase": PHASE_VARIABLES,
+    "fit": FIT_VARIABLES,
+    "sweep": SWEEP_VARIABLES,
+}
 
 
 def markdown_table() -> str:
