@@ -8,7 +8,7 @@ import xarray as xr
 
 import torrid
 from torrid.io.runfile import OutputExistsError, RunFileError, read_run, write_atomic
-from torrid.io.variables import VARIABLES, markdown_table
+from torrid.io.variables import TABLES, VARIABLES, markdown_table
 
 
 def test_every_variable_carries_its_table_attributes(small_w6_run):
@@ -71,8 +71,11 @@ def test_bad_run_files_are_named(tmp_path):
         read_run(other)
 
 
-def test_readme_lists_the_variable_table():
+@pytest.mark.parametrize("kind", sorted(TABLES))
+def test_readme_lists_the_variable_table(kind):
+    """The README's tables of run-file, phase-curve, fit and sweep-table variables are those
+    ``python -m torrid.io.variables`` prints."""
     from pathlib import Path
 
     readme = (Path(__file__).parents[1] / "README.md").read_text()
-    assert markdown_table() in readme
+    assert markdown_table(kind) in readme

@@ -12,6 +12,7 @@ coordinates themselves describe their configuration key (``torrid.workflow.colle
 
 from __future__ import annotations
 
+import sys
 from dataclasses import dataclass
 from typing import Sequence
 
@@ -205,14 +206,28 @@ TABLES: dict[str, dict[str, Variable]] = {
 }
 
 
-def markdown_table() -> str:
-    """The variable table as Markdown (for the README)."""
+def markdown_table(kind: str = "run") -> str:
+    """The variable table of one file kind (a key of :data:`TABLES`) as Markdown."""
+    def cell(text: str | None) -> str:
+        return (text or "").replace("|", "\\|")
+
     rows = ["| name | dims | units | long_name | standard_name |", "|---|---|---|---|---|"]
-    for name, var in {**COORDINATES, **VARIABLES}.items():
-        rows.append(f"| `{name}` | {', '.join(var.dims)} | {var.units} | {var.long_name} | "
-                    f"{var.standard_name or ''} |")
+    for name, var in TABLES[kind].items():
+        rows.append(f"| `{name}` | {', '.join(var.dims) or '(scalar)'} | {cell(var.units)} | "
+                    f"{cell(var.long_name)} | {cell(var.standard_name)} |")
     return "\n".join(rows)
 
 
-if __name__ == "__main__":  # python -m torrid.io.variables: the README's table
-    print(markdown_table())
+def main(argv: Sequence[str]) -> str:
+    """``python -m torrid.io.variables [KIND ...]``: the README's tables (default: all)."""
+    kinds = list(argv) or list(TABLES)
+    unknown = [k for k in kinds if k not in TABLES]
+    if unknown:
+        raise SystemExit(f"unknown file kind {unknown[0]!r}: choose from {', '.join(TABLES)}")
+    if len(kinds) == 1:
+        return markdown_table(kinds[0])
+    return "\n\n".join(f"{kind}:\n\n{markdown_table(kind)}" for kind in kinds)
+
+
+if __name__ == "__main__":
+    print(main(sys.argv[1:]))
