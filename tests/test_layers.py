@@ -12,10 +12,8 @@ import subprocess
 import sys
 from pathlib import Path
 
+import grimp  # import-linter's graph library (import-linter is in the test extra)
 import pytest
-
-grimp = pytest.importorskip("grimp")
-pytest.importorskip("importlinter")
 
 ROOT = Path(__file__).parents[1]
 SOURCE = ROOT / "src" / "torrid"
