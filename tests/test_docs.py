@@ -18,3 +18,16 @@ def test_readme_states_what_the_model_leaves_out():
     readme = (ROOT / "README.md").read_text().lower()
     assert "no radiative transfer" in readme and "one layer" in readme
     assert "not publish" in readme or "not for publication" in readme
+
+
+def test_readme_tables_are_the_generated_ones():
+    """Every table under a ``<!-- table: NAME -->`` marker is what the code generates
+    (``python -m torrid.interface.readme`` rewrites them): the settings table and the variable
+    tables of run, phase-curve, fit and sweep-table files."""
+    from torrid.interface.readme import generated, tables
+    from torrid.io.variables import TABLES
+
+    found = tables((ROOT / "README.md").read_text())
+    assert set(found) == {"settings", *(f"variables-{kind}" for kind in TABLES)}
+    for name, text in found.items():
+        assert text == generated(name), f"README table {name!r} is out of date"

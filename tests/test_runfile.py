@@ -8,7 +8,7 @@ import xarray as xr
 
 import torrid
 from torrid.io.runfile import OutputExistsError, RunFileError, read_run, write_atomic
-from torrid.io.variables import VARIABLES, markdown_table
+from torrid.io.variables import VARIABLES
 
 
 def test_every_variable_carries_its_table_attributes(small_w6_run):
@@ -69,10 +69,3 @@ def test_bad_run_files_are_named(tmp_path):
     xr.Dataset({"x": ("a", [1.0])}).to_netcdf(other)
     with pytest.raises(RunFileError, match="missing h, u, v"):
         read_run(other)
-
-
-def test_readme_lists_the_variable_table():
-    from pathlib import Path
-
-    readme = (Path(__file__).parents[1] / "README.md").read_text()
-    assert markdown_table() in readme

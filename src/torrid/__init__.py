@@ -5,19 +5,8 @@ The package is layered (see DEVELOPERS.md): ``torrid.physics`` holds pure array 
 ``torrid.interface`` the command line and plots. The names re-exported here are the Python API.
 """
 
-from importlib.metadata import PackageNotFoundError, version as _version
-
-try:
-    __version__ = _version("torrid")
-except PackageNotFoundError:  # running from a source tree that is not installed
-    __version__ = "0.0.0+unknown"
-
-
-class TorridWarning(UserWarning):
-    """Warnings issued by torrid itself (turned into errors in the test suite)."""
-
-
-from torrid.interface import accessor as _accessor  # noqa: E402,F401  (registers ds.torrid)
+from torrid.meta import TorridWarning, __version__
+from torrid.interface import accessor as _accessor  # noqa: F401  (registers ds.torrid)
 
 _API = ("build_case_config", "run", "ModelConfig", "load_config", "phase_curve", "ObserverSettings",
         "sweep", "fit")

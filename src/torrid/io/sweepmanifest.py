@@ -13,9 +13,9 @@ import json
 import os
 from pathlib import Path
 
-import torrid
 from torrid.io.atomic import write_text
 from torrid.io.sweepspec import SweepPoint, SweepSpec
+from torrid.meta import __version__
 
 MANIFEST_NAME = "sweep.json"
 FORMAT = 1
@@ -30,7 +30,7 @@ def manifest_data(spec: SweepSpec, points: list[SweepPoint]) -> dict:
     return {
         "torrid_sweep": spec.name,
         "format": FORMAT,
-        "torrid_version": torrid.__version__,
+        "torrid_version": __version__,
         "source": str(spec.source) if spec.source else None,
         "base_configuration": spec.base,
         "dimensions": [{"name": d.name, "zip": d.zip,

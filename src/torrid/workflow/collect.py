@@ -5,9 +5,8 @@ Dimensions are the sweep's dimensions (named after the key after the dot, e.g.
 ``config_key`` and the ``spacing``: log, linear or values); the other axes of a zip group are
 non-dimension coordinates along their group's dimension. Variables, from each point's file:
 
-* every ``final_<name>`` diagnostic as ``<name>`` (units and long_name from
-  :data:`torrid.io.variables.VARIABLES`), NaN for failed and missing points (a failed run file
-  keeps its last good state, but that is not a result);
+* every ``final_<name>`` diagnostic as ``<name>``, NaN for failed and missing points (a failed
+  run file keeps its last good state, but that is not a result);
 * ``steady_state_reached`` (1, 0; NaN when there is no run), ``steady_state_time_days``;
 * ``run_status`` (complete, steady, failed, missing), ``run_status_reason`` and ``run_file``
   (the point's file name in the folder, also for points still missing);
@@ -15,7 +14,8 @@ non-dimension coordinates along their group's dimension. Variables, from each po
   that ``table.torrid.phase_curve()`` turns the table into phase curves;
 * with ``maps``: ``h``, ``u``, ``v`` of the last output (dimensions ..., lat, lon).
 
-The table is plain netCDF: ``xarray.open_dataset`` is all a reader needs.
+Units and long names are the rows of :data:`torrid.io.variables.SWEEP_VARIABLES`. The table is
+plain netCDF: ``xarray.open_dataset`` is all a reader needs.
 """
 
 from __future__ import annotations
@@ -28,21 +28,18 @@ from pathlib import Path
 import numpy as np
 import xarray as xr
 
-import torrid
 from torrid.io.config import ConfigError, ModelConfig
 from torrid.io.pointfile import FINISHED, read_point
 from torrid.io.runfile import write_atomic
 from torrid.io.settings import setting
 from torrid.io.sweepmanifest import read_manifest
-from torrid.io.variables import COORDINATES, VARIABLES
+from torrid.io.variables import SWEEP_MAPS, SWEEP_VARIABLES, final_value_row
+from torrid.meta import __version__
 
-MAP_VARIABLES = ("h", "u", "v")
+MAP_VARIABLES = SWEEP_MAPS
 #: Inputs of each point's forcing that become variables over the sweep (the thickness ->
 #: temperature scaling of a phase curve), unless swept (then the coordinate holds them).
-FORCING = {
-    "nightside_thickness_m": {"units": "m", "long_name": "nightside equilibrium thickness H"},
-    "forcing_contrast": {"units": "1", "long_name": "forcing contrast dH / H"},
-}
+FORCING = ("nightside_thickness_m", "forcing_contrast")
 
 
 def table_path(folder: str | os.PathLike, name: str) -> Path:
@@ -62,13 +59,6 @@ def _coordinate(axis: dict, dim: str) -> xr.Variable:
         if data.dtype != bool:
             attrs["units"] = row.unit
     return xr.Variable((dim,), data, attrs)
-
-
-def _diagnostic_attrs(name: str) -> dict:
-    var = VARIABLES.get(name)
-    if var is None:
-        return {"long_name": f"final {name}"}
-    return {"units": var.units, "long_name": f"{var.long_name} (final value)"}
 
 
 def _is_number(value) -> bool:
@@ -161,20 +151,11 @@ def _point_variables(results: dict, base: dict, dims: list, shape: tuple, finals
             result.attrs.get("steady_state_time_days", np.nan))
         for name in finals:
             numbers[name][index] = float(result.attrs.get(f"final_{name}", np.nan))
-    data = {name: xr.Variable(dims, numbers[name], _diagnostic_attrs(name)) for name in finals}
-    data["steady_state_reached"] = xr.Variable(dims, numbers["steady_state_reached"], {
-        "units": "1", "long_name": "1 if the run stopped at its steady state, 0 if it ran "
-                                   "its days (NaN: no run)"})
-    data["steady_state_time_days"] = xr.Variable(dims, numbers["steady_state_time_days"], {
-        "units": "days", "long_name": "simulated day at which the steady state was reached"})
-    data["run_status"] = xr.Variable(dims, strings["run_status"], {
-        "long_name": "status of the point: complete, steady, failed or missing"})
-    data["run_status_reason"] = xr.Variable(dims, strings["run_status_reason"], {
-        "long_name": "why the point has its status"})
-    data["run_file"] = xr.Variable(dims, strings["run_file"], {
-        "long_name": "the point's run file in the sweep folder (named by its configuration)"})
-    for name, attrs in FORCING.items():  # what a phase curve of the table needs
-        data[name] = xr.Variable(dims, numbers[name], attrs)
+    data = {name: final_value_row(name).variable(numbers[name], dims) for name in finals}
+    columns = {**numbers, **strings}
+    for name in ("steady_state_reached", "steady_state_time_days", "run_status",
+                 "run_status_reason", "run_file", *FORCING):  # FORCING: for phase curves
+        data[name] = SWEEP_VARIABLES[name].variable(columns[name], dims)
     return data
 
 
@@ -198,14 +179,9 @@ def _point_maps(folder: Path, results: dict, dims: list, shape: tuple):
             fields[name][index] = snapshot[name]
     if fields is None:
         return None
-    coords = {"lat": xr.Variable(("lat",), grid[0], COORDINATES["lat"].attrs()),
-              "lon": xr.Variable(("lon",), grid[1], COORDINATES["lon"].attrs())}
-    data = {}
-    for name in MAP_VARIABLES:
-        var = VARIABLES[name]
-        data[name] = xr.Variable((*dims, "lat", "lon"), fields[name],
-                                 {**var.attrs(), "long_name": f"{var.long_name}, at the last "
-                                                              "output"})
+    coords = {"lat": SWEEP_VARIABLES["lat"].variable(grid[0]),
+              "lon": SWEEP_VARIABLES["lon"].variable(grid[1])}
+    data = {name: SWEEP_VARIABLES[name].variable(fields[name], dims) for name in MAP_VARIABLES}
     return coords, data
 
 
@@ -217,8 +193,8 @@ def _table_attrs(manifest: dict, status: np.ndarray, finished: list) -> dict:
         "Conventions": "CF-1.10",
         "title": f"torrid sweep table: {manifest['torrid_sweep']}",
         "torrid_sweep": manifest["torrid_sweep"],
-        "source": f"torrid {torrid.__version__}",
-        "torrid_version": torrid.__version__,
+        "source": f"torrid {__version__}",
+        "torrid_version": __version__,
         "date_created": _now(),
         "sweep_dimensions_json": json.dumps(manifest["dimensions"], allow_nan=True),
         "sweep_base_configuration_json": json.dumps(manifest["base_configuration"],

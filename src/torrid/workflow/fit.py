@@ -19,6 +19,7 @@ import numpy as np
 import xarray as xr
 
 from torrid.io.observed import ObservedCurve
+from torrid.io.variables import FIT_VARIABLES
 
 #: Delta chi-square of the 68.27 % and 95.45 % joint regions of two parameters (Avni 1976).
 DELTA_CHI2 = {"68.27%": 2.30, "95.45%": 6.18}
@@ -143,18 +144,17 @@ def fit_sweep(curves: xr.Dataset, observed: ObservedCurve, *, offset_deg: float 
     chi2 = chi2.where(np.isfinite(chi2))
     delta = chi2 - chi2.min()
     best_index = dict(zip(dims, np.unravel_index(int(np.nanargmin(chi2.values)), chi2.shape)))
+    rows = FIT_VARIABLES
     out = xr.Dataset({
-        "chi_square": chi2.assign_attrs(units="1", long_name="chi-square against the observation"),
-        "delta_chi_square": delta.assign_attrs(units="1", long_name="chi-square minus its minimum"),
-        "within_68": (delta <= DELTA_CHI2["68.27%"]).assign_attrs(
-            long_name="inside the 68.27 % joint region (delta chi-square <= 2.30)"),
-        "within_95": (delta <= DELTA_CHI2["95.45%"]).assign_attrs(
-            long_name="inside the 95.45 % joint region (delta chi-square <= 6.18)"),
-        "best_flux_ratio": flux.isel(best_index).drop_vars(dims, errors="ignore").assign_attrs(
-            units="ppm", long_name="phase curve of the best grid point"),
-        "observed_flux_ratio": ("observation", observed.flux_ratio_ppm, {"units": "ppm"}),
-        "observed_error": ("observation", observed.error_ppm, {"units": "ppm"}),
-    }, coords={"observed_phase": ("observation", observed.phase)})
+        "chi_square": rows["chi_square"].variable(chi2, dims),
+        "delta_chi_square": rows["delta_chi_square"].variable(delta, dims),
+        "within_68": rows["within_68"].variable(delta <= DELTA_CHI2["68.27%"], dims),
+        "within_95": rows["within_95"].variable(delta <= DELTA_CHI2["95.45%"], dims),
+        "best_flux_ratio": rows["best_flux_ratio"].variable(
+            flux.isel(best_index).drop_vars(dims, errors="ignore")),
+        "observed_flux_ratio": rows["observed_flux_ratio"].variable(observed.flux_ratio_ppm),
+        "observed_error": rows["observed_error"].variable(observed.error_ppm),
+    }, coords={"observed_phase": rows["observed_phase"].variable(observed.phase)})
     for d in dims:
         out.attrs[f"best_{d}"] = float(flux[d].values[best_index[d]])
     out.attrs["chi_square_min"] = float(chi2.min())
@@ -181,8 +181,7 @@ def fit_sweep(curves: xr.Dataset, observed: ObservedCurve, *, offset_deg: float 
         if amplitude_ppm is not None:
             err = amplitude_error_ppm if amplitude_error_ppm is not None else math.inf
             ok = ok & (abs(curves["amplitude"] - amplitude_ppm) <= err)
-        out["consistent"] = ok.assign_attrs(
-            long_name="reproduces the measured offset and amplitude within their errors")
+        out["consistent"] = rows["consistent"].variable(ok, dims)
     out.attrs["observation"] = observed.source
     return out
 

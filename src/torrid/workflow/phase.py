@@ -41,11 +41,12 @@ import warnings
 import numpy as np
 import xarray as xr
 
-import torrid
 from torrid.io.config import SECONDS_PER_DAY, ModelConfig
 from torrid.io.observer import (ASTRONOMICAL_UNIT_M, SOLAR_RADIUS_M, ObserverError,
                                 ObserverSettings, read_response)
 from torrid.io.provenance import config_from_attrs, provenance_attrs
+from torrid.io.variables import PHASE_VARIABLES
+from torrid.meta import TorridWarning
 from torrid.physics.curvefeatures import first_harmonic, parabolic_extremum, wrap_degrees
 from torrid.physics.disk import DiskQuadrature
 from torrid.physics.orbit import Orbit
@@ -228,7 +229,7 @@ def _time_series_disk(ds, settings, orbit: Orbit, quad: DiskQuadrature, band: Ba
     if spacing > period / MIN_SNAPSHOTS_PER_ORBIT:
         warnings.warn(f"{source}: snapshots {spacing / SECONDS_PER_DAY:g} days apart over an orbit "
                       f"of {period / SECONDS_PER_DAY:g} days: the phase curve interpolates a "
-                      "coarse time series", torrid.TorridWarning, stacklevel=4)
+                      "coarse time series", TorridWarning, stacklevel=4)
     k = np.clip(np.searchsorted(times_s, t, side="right") - 1, 0, times_s.size - 2)
     alpha = (t - times_s[k]) / (times_s[k + 1] - times_s[k])
     used, local = np.unique(np.concatenate([k, k + 1]), return_inverse=True)
@@ -249,61 +250,47 @@ def _time_series_disk(ds, settings, orbit: Orbit, quad: DiskQuadrature, band: Ba
             "snapshots; linear in time, each carried with the substellar point)")
 
 
-def _variable(dims, values, units, long_name):
-    return xr.Variable(dims, np.asarray(values, dtype=float), {"units": units,
-                                                              "long_name": long_name})
+def _variable(name: str, values, parameters=()) -> xr.Variable:
+    """The phase-file variable ``name`` (its row of the table) holding ``values`` as floats."""
+    return PHASE_VARIABLES[name].variable(np.asarray(values, dtype=float), parameters)
 
 
 def _assemble(ds, settings, band, ratio, disk, phases, phase_ecl, coords, param_dims, offset,
               times, info) -> xr.Dataset:
     n = phases.size
     curve, at_eclipse, at_transit = ratio[..., :n], ratio[..., n], ratio[..., n + 1]
-    dims = (*param_dims, "phase")
     k_max, f_max = parabolic_extremum(curve, maximum=True)
     k_min, f_min = parabolic_extremum(curve, maximum=False)
     mean, semi, phase_h = first_harmonic(curve)
     p = tuple(param_dims)
-    data = {
-        "flux_ratio": _variable(dims, curve, "ppm", "planet-to-star flux ratio in the band"),
-        "brightness_temperature": _variable(
-            dims, band.brightness_temperature(disk[..., :n] / np.pi), "K",
-            "band brightness temperature of the planet's disk-averaged intensity"),
-        "sub_observer_longitude": _variable(
-            ("phase",), np.degrees(offset), "degree",
-            "sub-observer longitude east of the substellar point"),
-        "eclipse_depth": _variable(p, at_eclipse, "ppm", "flux ratio at mid-eclipse"),
-        "nightside_flux": _variable(p, at_transit, "ppm", "flux ratio at mid-transit"),
-        "amplitude": _variable(p, f_max - f_min, "ppm", "peak-to-peak amplitude of the curve"),
-        "maximum_flux_ratio": _variable(p, f_max, "ppm", "maximum of the flux ratio"),
-        "minimum_flux_ratio": _variable(p, f_min, "ppm", "minimum of the flux ratio"),
-        "phase_of_maximum": _variable(p, k_max / n, "1", "orbital phase of the maximum"),
-        "phase_of_minimum": _variable(p, k_min / n, "1", "orbital phase of the minimum"),
-        "offset_of_maximum": _variable(p, wrap_degrees((phase_ecl - k_max / n) * 360), "degree",
-                                       "(eclipse phase - phase of maximum) x 360 (east positive)"),
-        "offset_of_minimum": _variable(p, wrap_degrees(-k_min / n * 360), "degree",
-                                       "(transit phase - phase of minimum) x 360"),
-        "mean_flux_ratio": _variable(p, mean, "ppm", "orbit-mean flux ratio"),
-        "harmonic_amplitude": _variable(p, 2 * semi, "ppm",
-                                        "peak-to-peak amplitude of the first harmonic"),
-        "harmonic_offset": _variable(p, wrap_degrees((phase_ecl - phase_h) * 360), "degree",
-                                     "(eclipse phase - phase of the first harmonic's maximum)"
-                                     " x 360"),
-        "eclipse_phase": _variable((), phase_ecl, "1", "orbital phase of mid-eclipse"),
+    per_point = {
+        "flux_ratio": curve,
+        "brightness_temperature": band.brightness_temperature(disk[..., :n] / np.pi),
+        "sub_observer_longitude": np.degrees(offset),
+        "eclipse_depth": at_eclipse,
+        "nightside_flux": at_transit,
+        "amplitude": f_max - f_min,
+        "maximum_flux_ratio": f_max,
+        "minimum_flux_ratio": f_min,
+        "phase_of_maximum": k_max / n,
+        "phase_of_minimum": k_min / n,
+        "offset_of_maximum": wrap_degrees((phase_ecl - k_max / n) * 360),
+        "offset_of_minimum": wrap_degrees(-k_min / n * 360),
+        "mean_flux_ratio": mean,
+        "harmonic_amplitude": 2 * semi,
+        "harmonic_offset": wrap_degrees((phase_ecl - phase_h) * 360),
+        "eclipse_phase": phase_ecl,
     }
-    for name, long_name in (("hotspot_offset", "the map's hotspot offset (equatorial maximum)"),
-                            ("hotspot_offset_harmonic",
-                             "the map's hotspot offset (first harmonic of the equatorial band)")):
+    data = {name: _variable(name, values, p) for name, values in per_point.items()}
+    for name in ("hotspot_offset", "hotspot_offset_harmonic"):
         value = _per_point(ds, f"final_{name}", False, "", alias=name)
         if isinstance(value, xr.DataArray):  # a sweep table's variable: onto the curve's dims
             value = value.expand_dims([d for d in p if d not in value.dims]).transpose(*p).values
-        data[f"map_{name}"] = _variable(p, np.broadcast_to(value, curve.shape[:-1]), "degree",
-                                        f"{long_name}, east positive in grid longitude")
+        data[f"map_{name}"] = _variable(f"map_{name}", np.broadcast_to(value, curve.shape[:-1]),
+                                        p)
     if times is not None:
-        data["time"] = _variable(("phase",), times[:n], "days",
-                                 "simulated time of each phase sample")
-    out = xr.Dataset(data, coords={"phase": ("phase", phases), **coords})
-    out["phase"].attrs.update(units="1", long_name="orbital phase (time since mid-transit over "
-                              "the period; 0: mid-transit)")
+        data["time"] = _variable("time", times[:n])
+    out = xr.Dataset(data, coords={"phase": _variable("phase", phases), **coords})
     out.attrs.update(_attributes(ds, settings, band, info))
     return out
 

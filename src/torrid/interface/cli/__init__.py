@@ -11,7 +11,6 @@ from __future__ import annotations
 import argparse
 import sys
 
-from torrid import __version__
 from torrid.interface.cli import collect as collect_cmd
 from torrid.interface.cli import demo as demo_cmd
 from torrid.interface.cli import fit as fit_cmd
@@ -20,6 +19,7 @@ from torrid.interface.cli import plot as plot_cmd
 from torrid.interface.cli import run as run_cmd
 from torrid.interface.cli import settings as settings_cmd
 from torrid.interface.cli import sweep as sweep_cmd
+from torrid.meta import __version__
 from torrid.workflow.driver import RunFailedError
 
 SUBCOMMANDS = {"run": run_cmd, "plot": plot_cmd, "phase": phase_cmd, "sweep": sweep_cmd,
