@@ -100,7 +100,7 @@ def plot_planet_map(ds: xr.Dataset, path: str | os.PathLike | None = None,
     ax.quiverkey(arrows, 0.88, 1.04, key, f"{key / 1e3:g} km/s", labelpos="E", color="black")
     ax.plot(0, 0, marker="*", ms=14, color="gold", mec="black", ls="none",
             label="substellar point")
-    if "hotspot_offset" in snap:
+    if np.isfinite(float(snap["hotspot_offset"])):
         ax.plot(float(snap["hotspot_offset"]), 0, marker="X", ms=10, color="cyan",
                 mec="black", ls="none", label=f"hotspot ({float(snap['hotspot_offset']):+.0f} deg)")
     ax.legend(loc="lower left", fontsize=8, framealpha=0.8)

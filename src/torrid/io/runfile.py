@@ -92,6 +92,12 @@ def load_netcdf(path: str | os.PathLike, what: str, error: type[Exception]) -> x
         raise error(f"{path}: not a readable netCDF {what} ({type(err).__name__})") from None
 
 
+def is_planet_run(ds: xr.Dataset) -> bool:
+    """True for the run file of a forced hot-planet run (``case = "planet"``, written from
+    :attr:`torrid.io.config.ModelConfig.is_planet`), False for a standard case."""
+    return ds.attrs.get("case") == "planet"
+
+
 def read_run(path: str | os.PathLike) -> xr.Dataset:
     """Open a run file fully into memory (the file is closed afterwards).
 

@@ -6,7 +6,7 @@ import argparse
 import sys
 from pathlib import Path
 
-from torrid.io.runfile import refuse_existing
+from torrid.io.runfile import is_planet_run, refuse_existing
 
 
 def add_parser(sub: argparse._SubParsersAction) -> None:
@@ -46,8 +46,7 @@ def handle(args: argparse.Namespace) -> int:
         return 0
     ds = read_run(args.run_file)
     stem = args.run_file.with_suffix("")
-    is_planet = "hotspot_offset" in ds
-    if args.variable or not is_planet:
+    if args.variable or not is_planet_run(ds):
         variable = args.variable or "h"
         out = args.output or Path(f"{stem}-{variable}.png")
         plots.plot_map(ds, variable, args.time, out, overwrite=args.overwrite)
