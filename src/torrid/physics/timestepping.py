@@ -41,6 +41,12 @@ STABILITY_LIMIT = 1.57
 #: the stability limit for winds that grow between two output times).
 COURANT_LIMIT = 1.2
 
+#: Largest explicit damping rate x step (a linear damping left to the explicit part, such as a
+#: spatially varying drag): the scheme's explicit part is stable for rate x dt up to 2.15 on the
+#: negative real axis and, with advection at Courant numbers up to COURANT_LIMIT, up to 1.55
+#: (frozen-coefficient analysis, tests/test_timestepping.py); 1.0 leaves a margin.
+EXPLICIT_DAMPING_LIMIT = 1.0
+
 Tendency = Callable[[np.ndarray, float, np.ndarray], np.ndarray]
 
 

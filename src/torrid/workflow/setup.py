@@ -85,11 +85,13 @@ class _Start:
 PLANET_SPEED_OVER_WAVE_SPEED = 2.0
 
 
-def choose_time_step(config: ModelConfig, max_speed_m_s: float) -> tuple[float, int]:
+def choose_time_step(config: ModelConfig, max_speed_m_s: float,
+                     process_limits_s: tuple[float, ...] = ()) -> tuple[float, int]:
     """Time step (s) and steps per output interval.
 
     The step (the given ``time_step_s``, or that of the configured Courant number) is shortened,
-    if needed, to divide the output interval exactly, so outputs fall on steps.
+    if needed, to the processes' stability limits (``process_limits_s``, s) and to divide the
+    output interval exactly, so outputs fall on steps.
     """
     interval_s = config.run.output_interval_days * SECONDS_PER_DAY
     n = config.numerics
@@ -98,6 +100,7 @@ def choose_time_step(config: ModelConfig, max_speed_m_s: float) -> tuple[float, 
     else:
         dt = automatic_time_step(max(max_speed_m_s, 1e-3), config.planet.radius_m,
                                  n.truncation, n.courant_number)
+    dt = min((dt, *process_limits_s))
     steps = max(1, math.ceil(interval_s / dt - 1e-9))
     return interval_s / steps, steps
 
@@ -195,7 +198,8 @@ def build_model(config: ModelConfig) -> Model:
     linear = LinearTerms.from_rates(l * (l + 1) / config.planet.radius_m**2,
                                     start.mean_geopotential,
                                     [p.implicit_rates() for p in processes])
-    dt, steps_per_output = choose_time_step(config, start.reference_speed_m_s)
+    limits = tuple(limit for p in processes if (limit := p.max_time_step_s()) is not None)
+    dt, steps_per_output = choose_time_step(config, start.reference_speed_m_s, limits)
     stepper = IMEXStepper(dynamics, linear, dt, state.shape)
     return Model(config=config, case=case, grid=grid, transforms=transforms,
                  processes=processes, dynamics=dynamics, linear=linear, stepper=stepper,

@@ -7,6 +7,7 @@ A process contributes any of
   (:meth:`Process.spectral_tendency`, added to the state's tendency);
 * implicit rates (:meth:`Process.implicit_rates`): linear damping that is diagonal in spectral
   space, solved with the gravity waves (:mod:`torrid.physics.linear`);
+* a bound on the time step, if its explicit part is stiff (:meth:`Process.max_time_step_s`);
 * diagnostics for the run file (:meth:`Process.diagnostics`, with their metadata in
   :attr:`Process.diagnostic_variables`) and global attributes (:meth:`Process.attrs`).
 
@@ -144,6 +145,11 @@ class Process:
     def spectral_tendency(self, time_s: float, fields: GridFields, out: np.ndarray) -> None:
         """Add explicit tendencies to the spectral tendency ``out`` (3, ncoeff) in place."""
         raise NotImplementedError
+
+    def max_time_step_s(self) -> float | None:
+        """The longest step (s) at which the process's explicit part stays stable (None: no
+        limit); the model's step is shortened to it."""
+        return None
 
     def diagnostics(self, snapshot: Snapshot) -> dict[str, float]:
         """Values of the process's diagnostics for one output state."""
