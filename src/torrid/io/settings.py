@@ -254,6 +254,10 @@ SETTINGS: tuple[Setting, ...] = (
     Setting("atmosphere", "drag_timescale_days", float, math.inf, "days", "drag timescale",
             "tau_drag of the Rayleigh drag; inf: no drag",
             minimum=0, exclusive_minimum=True, allow_inf=True),
+    Setting("atmosphere", "mass_exchange_momentum", bool, True, "",
+            "mass-exchange momentum term",
+            "keep the momentum term -v Q / h where the relaxation adds mass (Showman & Polvani "
+            "2011); false leaves it out, as many published runs do"),
     # --- orbit
     Setting("orbit", "eccentricity", float, 0.0, "1", "eccentricity",
             "orbital eccentricity e (a bound orbit)", minimum=0, maximum=1,

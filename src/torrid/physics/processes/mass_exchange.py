@@ -2,7 +2,8 @@
 
 Where the relaxation adds mass (Q = (h_eq - h) / tau_rad > 0), the new mass arrives at rest,
 so it slows the layer: R = -v Q / h on both wind components; where mass is removed (Q <= 0)
-R = 0.
+R = 0. ``atmosphere.mass_exchange_momentum = false`` leaves the term out (as many published
+runs do); it is on by default.
 """
 
 from __future__ import annotations
@@ -16,6 +17,7 @@ class MassExchange(Process):
     """R = -v Q / h where Q > 0, from the Newtonian relaxation's Q (m s^-2)."""
 
     name = "mass_exchange"
+    settings = ("atmosphere.mass_exchange_momentum",)
     reference = "Showman & Polvani (2011)"
 
     def __init__(self, relaxation):
@@ -27,7 +29,8 @@ class MassExchange(Process):
     @classmethod
     def build(cls, settings, context):
         relaxation = context.built.get("newtonian_relaxation")
-        if relaxation is None or relaxation.rate == 0.0:
+        if not settings["atmosphere.mass_exchange_momentum"] or relaxation is None \
+                or relaxation.rate == 0.0:
             return None
         return cls(relaxation)
 

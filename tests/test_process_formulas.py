@@ -1,0 +1,81 @@
+"""Each physical process against its published formula, on a prescribed state (issue 10).
+
+The state is made on the model grid from analytic fields (winds and a thickness with both
+signs of the relaxation's mass source Q), so every term is evaluated where its formula is known
+in closed form; the process's output must equal the formula to round-off (1e-12 relative to the
+field's largest value: a handful of ulps of the transforms). A term applied to one component
+only, with the wrong sign, or where the formula says zero, fails by O(1).
+
+Sources: Showman & Polvani (2011, ApJ 738, 71), eqs. 1-3 and the definition of R
+(R = -v Q / h where Q > 0, else 0; Q = (h_eq - h) / tau_rad); the equilibrium profile of
+Showman & Polvani (2011) and Perez-Becker & Showman (2013) (dayside cosine), and the global
+cosine of linear Matsuno-Gill studies (Matsuno 1966; Gill 1980; Showman & Polvani 2011,
+section 3). Formulas quoted from memory of the papers, as in the module docstrings.
+"""
+
+import math
+
+import numpy as np
+import pytest
+
+import torrid
+from torrid.physics.fields import spectral_state
+from torrid.physics.processes.relaxation import equilibrium_thickness
+from torrid.workflow.setup import build_model
+
+DAY_S = 86400.0
+ROUND_OFF = 1e-12
+
+
+def _model(**atmosphere):
+    config = torrid.ModelConfig().replace(numerics={"truncation": 21},
+                                          atmosphere={"radiative_timescale_days": 0.5,
+                                                      **atmosphere})
+    return build_model(config)
+
+
+def _prescribed(model):
+    """Analytic grid fields: u, v (m/s) and h (m) with h_eq - h of both signs on the dayside."""
+    lat, lon = model.grid.mesh()
+    big_h = model.mean_geopotential / model.gravity_m_s2
+    u = 800.0 * np.cos(lat) + 300.0 * np.cos(lat) * np.sin(lon)
+    v = 900.0 * np.sin(lat) * np.cos(lat) * np.cos(2 * lon)
+    h = big_h * (1.4 + 0.3 * np.cos(lat) * np.cos(lon + 0.7))
+    return u, v, h
+
+
+def _grid_fields(model, u, v, h):
+    """The dynamics' grid fields of the state made from (u, v, h), and that state's own
+    grid u, v, h (the truncated fields the process sees)."""
+    g = model.gravity_m_s2
+    state = spectral_state(model.transforms, u, v, g * h - model.mean_geopotential)
+    model.dynamics.grid_fields(state)
+    fields = model.dynamics.fields
+    return fields, fields.winds[1].copy(), -fields.winds[0], \
+        (fields.geopotential + model.mean_geopotential) / g
+
+
+def test_mass_exchange_is_minus_v_q_over_h_where_mass_is_added():
+    """R = -v Q / h on both components where Q > 0 and 0 where Q <= 0 (Showman & Polvani 2011)."""
+    model = _model()
+    process = model.process("mass_exchange")
+    fields, u, v, h = _grid_fields(model, *_prescribed(model))
+    lat, lon = model.grid.mesh()
+    big_h = model.mean_geopotential / model.gravity_m_s2
+    h_eq = equilibrium_thickness(lat, lon, mean_thickness_m=big_h, contrast=1.0,
+                                 substellar_longitude_rad=0.0)
+    q = (h_eq - h) / (0.5 * DAY_S)
+    assert (q > 0).any() and (q < 0).any()  # the state tests both branches
+    expected_east = np.where(q > 0, -u * q / h, 0.0)
+    expected_north = np.where(q > 0, -v * q / h, 0.0)
+    east, north = process.momentum_forcing(0.0, fields)
+    scale = np.abs(expected_east).max()
+    np.testing.assert_allclose(east, expected_east, rtol=0, atol=ROUND_OFF * scale)
+    np.testing.assert_allclose(north, expected_north, rtol=0,
+                               atol=ROUND_OFF * np.abs(expected_north).max())
+    assert np.abs(expected_north).max() > 0.05 * scale  # the northward part is not negligible
+
+
+def test_mass_exchange_switch():
+    assert _model().process("mass_exchange") is not None
+    assert _model(mass_exchange_momentum=False).process("mass_exchange") is None
