@@ -21,6 +21,7 @@ from torrid.io.settings import (REQUIRED, SECTIONS, ConfigError, Setting, defaul
                                 section_settings, short_repr)
 from torrid.io.tomltext import parse_value
 from torrid.physics.cases import CASES, earth
+from torrid.physics.processes import CASE, PLANET, REGISTRY
 from torrid.physics.units import SECONDS_PER_DAY
 
 __all__ = ["ConfigError", "ModelConfig", "PlanetConfig", "AtmosphereConfig", "OrbitConfig",
@@ -120,6 +121,12 @@ class ModelConfig:
         if self.is_planet and math.isinf(self.planet.rotation_period_days) \
                 and o.orbital_period_days is None:
             raise ConfigError("planet.rotation_period_days = inf needs orbit.orbital_period_days")
+        kind = PLANET if self.is_planet else CASE
+        for process in REGISTRY:
+            if kind in process.kinds:
+                problem = process.check({key: self.get(key) for key in process.settings})
+                if problem:
+                    raise ConfigError(problem)
         n = self.numerics
         unset = {k: default(f"numerics.{k}") for k in _CASE_DISSIPATION if getattr(n, k) is None}
         if self.is_planet and unset:  # "the case's setting" means nothing for a planet

@@ -129,6 +129,13 @@ class Process:
     reference: ClassVar[str] = ""
 
     @classmethod
+    def check(cls, settings: Mapping[str, Any]) -> str | None:
+        """A rule between the process's settings (each already valid on its own): the reason,
+        in one line naming the keys and values, if they do not go together; None if they do.
+        Checked when a configuration is validated."""
+        return None
+
+    @classmethod
     def build(cls, settings: Mapping[str, Any], context: ProcessContext) -> "Process | None":
         """The process of a run with these settings, or None if it does nothing there."""
         raise NotImplementedError
