@@ -79,3 +79,51 @@ def test_mass_exchange_is_minus_v_q_over_h_where_mass_is_added():
 def test_mass_exchange_switch():
     assert _model().process("mass_exchange") is not None
     assert _model(mass_exchange_momentum=False).process("mass_exchange") is None
+
+
+@pytest.mark.parametrize("profile", ["dayside", "global"])
+def test_relaxation_source_and_rate_against_the_profile(profile):
+    """The relaxation's explicit source is (Phi_eq - Phi_mean) / tau_rad of the published
+    profile and its implicit thickness rate 1 / tau_rad: together d phi'/dt = (Phi_eq - Phi) /
+    tau_rad. dayside: H (1 + c max(0, cos lat cos(lon - s))) (Showman & Polvani 2011); global:
+    H (1 + c cos lat cos(lon - s)) (Matsuno 1966; Gill 1980)."""
+    model = _model(equilibrium_profile=profile, forcing_contrast=0.6)
+    relaxation = model.process("newtonian_relaxation")
+    tau_s = 0.5 * DAY_S
+    assert relaxation.implicit_rates().thickness == 1 / tau_s
+    assert relaxation.implicit_rates().vorticity is None
+    lat, lon = model.grid.mesh()
+    big_h = model.mean_geopotential / model.gravity_m_s2
+    cosine = np.cos(lat) * np.cos(lon)
+    shape = np.maximum(cosine, 0) if profile == "dayside" else cosine
+    h_eq = big_h * (1 + 0.6 * shape)
+    np.testing.assert_allclose(relaxation.equilibrium(0.0) / model.gravity_m_s2, h_eq, rtol=1e-14)
+    out = np.zeros((3, model.grid.ncoeff), dtype=complex)
+    relaxation.spectral_tendency(0.0, model.dynamics.fields, out)
+    source = model.transforms.to_grid(out[2])
+    expected = model.gravity_m_s2 * (h_eq - big_h) / tau_s
+    scale = np.abs(expected).max()
+    if profile == "global":  # a degree-1 field: exact in the truncation
+        np.testing.assert_allclose(source, expected, atol=ROUND_OFF * scale)
+    else:  # the kinked cosine, truncated at T21: its spectral fit
+        fit = model.transforms.to_grid(model.transforms.to_spectral(expected))
+        np.testing.assert_allclose(source, fit, atol=ROUND_OFF * scale)
+    assert np.abs(out[:2]).max() == 0  # no momentum part
+
+
+def test_global_profile_needs_a_contrast_below_one():
+    from torrid.io.config import ConfigError
+
+    with pytest.raises(ConfigError, match="must be < 1 with atmosphere.equilibrium_profile"):
+        _model(equilibrium_profile="global", forcing_contrast=1.0)
+
+
+@pytest.mark.parametrize("profile, low", [("dayside", 1.0), ("global", 0.4)])
+def test_temperature_map_end_points_span_the_equilibrium(profile, low):
+    """The run file's nightside_thickness_m / substellar_thickness_m are the equilibrium's
+    smallest and largest thickness, the end points of the phase curves' temperature map."""
+    model = _model(equilibrium_profile=profile, forcing_contrast=0.6)
+    attrs = model.process("newtonian_relaxation").attrs()
+    big_h = model.mean_geopotential / model.gravity_m_s2
+    assert attrs["nightside_thickness_m"] == pytest.approx(low * big_h, rel=1e-15)
+    assert attrs["substellar_thickness_m"] == pytest.approx(1.6 * big_h, rel=1e-15)

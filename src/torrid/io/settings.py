@@ -23,6 +23,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from torrid.physics.cases import CASES
+from torrid.physics.processes.relaxation import PROFILES
 
 
 class ConfigError(ValueError):
@@ -254,6 +255,10 @@ SETTINGS: tuple[Setting, ...] = (
     Setting("atmosphere", "drag_timescale_days", float, math.inf, "days", "drag timescale",
             "tau_drag of the Rayleigh drag; inf: no drag",
             minimum=0, exclusive_minimum=True, allow_inf=True),
+    Setting("atmosphere", "equilibrium_profile", str, "dayside", "", "equilibrium profile",
+            "dayside: H + dH cos(lat) cos(lon - lon_sub) on the dayside, H on the nightside "
+            "(Showman & Polvani 2011); global: the cosine everywhere (Matsuno 1966, Gill 1980)",
+            choices=PROFILES),
     Setting("atmosphere", "mass_exchange_momentum", bool, True, "",
             "mass-exchange momentum term",
             "keep the momentum term -v Q / h where the relaxation adds mass (Showman & Polvani "

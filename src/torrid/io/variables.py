@@ -179,7 +179,9 @@ SWEEP_VARIABLES: dict[str, Variable] = {
     "run_status_reason": Variable(_P, None, "why the point has its status"),
     "run_file": Variable(_P, None, "the point's run file in the sweep folder (named by its "
                                    "configuration)"),
-    "nightside_thickness_m": Variable(_P, "m", "nightside equilibrium thickness H"),
+    "nightside_thickness_m": Variable(_P, "m", "smallest equilibrium thickness (the nightside H; "
+                                               "antistellar for the global profile)"),
+    "substellar_thickness_m": Variable(_P, "m", "largest (substellar) equilibrium thickness"),
     "forcing_contrast": Variable(_P, "1", "forcing contrast dH / H"),
     **{name: Variable((PARAMETERS, "lat", "lon"), VARIABLES[name].units,
                       f"{VARIABLES[name].long_name}, at the last output",

@@ -10,7 +10,8 @@ non-dimension coordinates along their group's dimension. Variables, from each po
 * ``steady_state_reached`` (1, 0; NaN when there is no run), ``steady_state_time_days``;
 * ``run_status`` (complete, steady, failed, missing), ``run_status_reason`` and ``run_file``
   (the point's file name in the folder, also for points still missing);
-* ``nightside_thickness_m`` and ``forcing_contrast`` (unless swept: then the coordinate), so
+* ``nightside_thickness_m``, ``substellar_thickness_m`` (the equilibrium's smallest and largest
+  thickness) and ``forcing_contrast`` (unless swept: then the coordinate), so
   that ``table.torrid.phase_curve()`` turns the table into phase curves;
 * with ``maps``: ``h``, ``u``, ``v`` of the last output (dimensions ..., lat, lon).
 
@@ -35,11 +36,12 @@ from torrid.io.settings import setting
 from torrid.io.sweepmanifest import read_manifest
 from torrid.io.variables import SWEEP_MAPS, SWEEP_VARIABLES, final_value_row
 from torrid.meta import __version__
+from torrid.physics.processes.relaxation import equilibrium_extremes
 
 MAP_VARIABLES = SWEEP_MAPS
 #: Inputs of each point's forcing that become variables over the sweep (the thickness ->
 #: temperature scaling of a phase curve), unless swept (then the coordinate holds them).
-FORCING = ("nightside_thickness_m", "forcing_contrast")
+FORCING = ("nightside_thickness_m", "substellar_thickness_m", "forcing_contrast")
 
 
 def table_path(folder: str | os.PathLike, name: str) -> Path:
@@ -125,9 +127,11 @@ def _forcing_inputs(base: dict, point: dict) -> dict:
     try:
         config = ModelConfig.from_dict(data)
     except ConfigError:
-        return {"nightside_thickness_m": np.nan, "forcing_contrast": np.nan}
+        return dict.fromkeys(FORCING, np.nan)
     atm = config.atmosphere
-    return {"nightside_thickness_m": atm.mean_geopotential_m2_s2 / config.planet.gravity_m_s2,
+    low, high = equilibrium_extremes(atm.mean_geopotential_m2_s2 / config.planet.gravity_m_s2,
+                                     atm.forcing_contrast, atm.equilibrium_profile)
+    return {"nightside_thickness_m": low, "substellar_thickness_m": high,
             "forcing_contrast": atm.forcing_contrast}
 
 

@@ -99,7 +99,6 @@ def final_value(times_days, values, window_days: float, angle: bool = False) -> 
 def planet_attrs(model: Model, times_days: list, series: dict, criterion: SteadyCriterion,
                  stopping: bool, steady_day: float | None) -> dict:
     """Steady-state record and final diagnostics (means over the criterion's window)."""
-    atm = model.config.atmosphere
     window = criterion.window_days
     out = {
         "steady_state_reached": int(steady_day is not None),
@@ -109,8 +108,6 @@ def planet_attrs(model: Model, times_days: list, series: dict, criterion: Steady
                                         f"{criterion.tolerance:g}"
                                         + ("" if model.orbit.is_steady
                                            else ", whole orbits (orbit-to-orbit repeat)")),
-        "nightside_thickness_m": atm.mean_geopotential_m2_s2 / model.gravity_m_s2,
-        "forcing_contrast": atm.forcing_contrast,
     }
     out["final_values"] = (f"time means over the last {window:g} days (the steady-state "
                            "window; whole orbits on eccentric orbits), or the last output if "

@@ -173,6 +173,9 @@ def _phase_curve(ds: xr.Dataset, settings: ObserverSettings, source: str) -> xr.
     offset = sub_observer_offset(orbital_angle(phases, e, omega), sense)
     big_h = _per_point(ds, "nightside_thickness_m", True, source)
     contrast = _per_point(ds, "forcing_contrast", True, source)
+    top = _per_point(ds, "substellar_thickness_m", False, source)
+    if isinstance(top, xr.DataArray) or np.isfinite(top):  # the map spans the equilibrium
+        contrast = top / big_h - 1
     steady = orbit is None or orbit.is_steady or "time" not in h.dims
     times = None
     if steady:

@@ -5,7 +5,11 @@ Showman & Polvani (2011); Perez-Becker & Showman (2013). In geopotential units
 
     d Phi / dt = ... + (Phi_eq - Phi) / tau_rad
 
-with h_eq = H (1 + c max(0, cos(lat) cos(lon - lon_sub))), c = dH/H the forcing contrast. The
+with h_eq = H (1 + c max(0, cos(lat) cos(lon - lon_sub))), c = dH/H the forcing contrast
+(``atmosphere.equilibrium_profile = "dayside"``: a dayside cosine over a flat nightside, as in
+Showman & Polvani 2011 and Perez-Becker & Showman 2013), or h_eq = H (1 + c cos(lat)
+cos(lon - lon_sub)) (``"global"``: the global cosine of linear Matsuno-Gill studies, Matsuno
+1966, Gill 1980, with H the global mean and H (1 - c) at the antistellar point). The
 linear part -phi' / tau_rad is implicit (an implicit thickness rate 1 / tau_rad); the source
 (Phi_eq - Phi_mean) / tau_rad is explicit. On an eccentric orbit the contrast follows the star's
 distance, c(t) = c (a / r)^k, and the substellar point moves (:class:`torrid.physics.orbit.Orbit`).
@@ -28,13 +32,18 @@ from torrid.physics.state import GEOPOTENTIAL
 from torrid.physics.units import SECONDS_PER_DAY
 
 
+PROFILES = ("dayside", "global")
+
+
 def equilibrium_thickness(lat: np.ndarray, lon: np.ndarray, *, mean_thickness_m: float,
-                          contrast: float, substellar_longitude_rad: float) -> np.ndarray:
+                          contrast: float, substellar_longitude_rad: float,
+                          profile: str = "dayside") -> np.ndarray:
     """Radiative-equilibrium layer thickness h_eq (m) of a tidally locked planet.
 
-    h_eq = H (1 + contrast max(0, cos(lat) cos(lon - lon_sub))): H + dH cos(lon - lon_sub) cos(lat)
-    on the dayside and H on the nightside (Showman & Polvani 2011; Perez-Becker & Showman 2013),
-    with contrast = dH / H.
+    ``dayside``: h_eq = H (1 + contrast max(0, cos(lat) cos(lon - lon_sub))), i.e.
+    H + dH cos(lon - lon_sub) cos(lat) on the dayside and H on the nightside (Showman & Polvani
+    2011; Perez-Becker & Showman 2013). ``global``: h_eq = H (1 + contrast cos(lat)
+    cos(lon - lon_sub)) everywhere (Matsuno 1966; Gill 1980). contrast = dH / H.
 
     Parameters
     ----------
@@ -46,6 +55,8 @@ def equilibrium_thickness(lat: np.ndarray, lon: np.ndarray, *, mean_thickness_m:
         dH / H, the fractional substellar thickness excess (dimensionless).
     substellar_longitude_rad : float
         Substellar longitude lon_sub (rad, east positive).
+    profile : str
+        ``dayside`` or ``global``.
 
     Returns
     -------
@@ -55,7 +66,17 @@ def equilibrium_thickness(lat: np.ndarray, lon: np.ndarray, *, mean_thickness_m:
     lat = np.asarray(lat, dtype=float)
     lon = np.asarray(lon, dtype=float)
     cos_angle = np.cos(lat) * np.cos(lon - substellar_longitude_rad)
-    return mean_thickness_m * (1.0 + contrast * np.maximum(0.0, cos_angle))
+    if profile == "dayside":
+        cos_angle = np.maximum(0.0, cos_angle)
+    return mean_thickness_m * (1.0 + contrast * cos_angle)
+
+
+def equilibrium_extremes(mean_thickness_m: float, contrast: float,
+                         profile: str = "dayside") -> tuple[float, float]:
+    """The smallest and largest equilibrium thickness (m): the nightside (antistellar) and the
+    substellar value, H and H (1 + c) for ``dayside``, H (1 - c) and H (1 + c) for ``global``."""
+    low = mean_thickness_m * (1 - contrast) if profile == "global" else mean_thickness_m
+    return low, mean_thickness_m * (1 + contrast)
 
 
 class NewtonianRelaxation(Process):
@@ -64,7 +85,8 @@ class NewtonianRelaxation(Process):
 
     name = "newtonian_relaxation"
     settings = ("atmosphere.mean_geopotential_m2_s2", "atmosphere.forcing_contrast",
-                "atmosphere.radiative_timescale_days", "orbit.distance_exponent")
+                "atmosphere.radiative_timescale_days", "atmosphere.equilibrium_profile",
+                "orbit.distance_exponent")
     reference = "Showman & Polvani (2011); Perez-Becker & Showman (2013)"
     diagnostic_variables = {
         **{name: Diagnostic(units, long_name, angle=name.startswith("hotspot"))
@@ -78,13 +100,15 @@ class NewtonianRelaxation(Process):
     }
 
     def __init__(self, context, mean_geopotential: float, contrast: float,
-                 radiative_timescale_s: float, distance_exponent: float):
+                 radiative_timescale_s: float, distance_exponent: float,
+                 profile: str = "dayside"):
         self.transforms, self.orbit = context.transforms, context.orbit
         self.gravity_m_s2 = context.gravity_m_s2
         self.rotation_rate_s = context.rotation_rate_s
         self.mean_geopotential, self.contrast = float(mean_geopotential), float(contrast)
         self.rate = 0.0 if math.isinf(radiative_timescale_s) else 1.0 / radiative_timescale_s
         self.distance_exponent = float(distance_exponent)
+        self.profile = profile
         lat, lon = self.transforms.grid.mesh()
         self._coslat_coslon = np.cos(lat) * np.cos(lon)  # cos(lat) cos(lon - s) expands
         self._coslat_sinlon = np.cos(lat) * np.sin(lon)  # into these two for any s
@@ -94,11 +118,21 @@ class NewtonianRelaxation(Process):
         self._steady = self.orbit.is_steady
 
     @classmethod
+    def check(cls, settings):
+        contrast = settings["atmosphere.forcing_contrast"]
+        if settings["atmosphere.equilibrium_profile"] == "global" and contrast >= 1:
+            return (f"atmosphere.forcing_contrast = {contrast!r}: must be < 1 with "
+                    "atmosphere.equilibrium_profile = 'global' (the antistellar equilibrium "
+                    "thickness H (1 - dH/H) must stay positive)")
+        return None
+
+    @classmethod
     def build(cls, settings, context):
         return cls(context, settings["atmosphere.mean_geopotential_m2_s2"],
                    settings["atmosphere.forcing_contrast"],
                    settings["atmosphere.radiative_timescale_days"] * SECONDS_PER_DAY,
-                   settings["orbit.distance_exponent"])
+                   settings["orbit.distance_exponent"],
+                   settings["atmosphere.equilibrium_profile"])
 
     # --- the forcing in time ---------------------------------------------------------------
     def state_at(self, time_s: float) -> tuple[float, float]:
@@ -116,11 +150,21 @@ class NewtonianRelaxation(Process):
             lon_sub, contrast = self.state_at(time_s)
             cosine = (self._coslat_coslon * math.cos(lon_sub)
                       + self._coslat_sinlon * math.sin(lon_sub))
-            self._phi_eq = self.mean_geopotential * (1 + contrast * np.maximum(cosine, 0.0))
+            if self.profile == "dayside":
+                cosine = np.maximum(cosine, 0.0)
+            self._phi_eq = self.mean_geopotential * (1 + contrast * cosine)
             self._source = self.transforms.to_spectral(
                 (self._phi_eq - self.mean_geopotential) * self.rate)
             self._cached_time = key
         return self._phi_eq
+
+    def attrs(self) -> dict:
+        """The equilibrium's smallest and largest thickness at the mean star distance (the end
+        points of the phase curves' temperature map) and its contrast."""
+        low, high = equilibrium_extremes(self.mean_geopotential / self.gravity_m_s2,
+                                         self.contrast, self.profile)
+        return {"nightside_thickness_m": low, "substellar_thickness_m": high,
+                "forcing_contrast": self.contrast, "equilibrium_profile": self.profile}
 
     def heating(self, time_s: float, geopotential: np.ndarray) -> np.ndarray:
         """Q in geopotential units, (Phi_eq - Phi) / tau_rad on the grid (m^2 s^-3).
