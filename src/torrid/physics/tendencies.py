@@ -78,7 +78,8 @@ class Dynamics:
 
     def _momentum_forcing(self, time_s: float) -> tuple[np.ndarray, np.ndarray]:
         """The processes' momentum forcing F (east, north) on the grid (zero if none)."""
-        forcings = [p.momentum_forcing(time_s, self.fields) for p in self._momentum_processes]
+        forcings = [f for p in self._momentum_processes
+                    if (f := p.momentum_forcing(time_s, self.fields)) is not None]
         if not forcings:
             return self._force_east, self._force_north
         if len(forcings) == 1:

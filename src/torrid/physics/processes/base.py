@@ -145,8 +145,9 @@ class Process:
         return None
 
     def momentum_forcing(self, time_s: float, fields: GridFields
-                         ) -> tuple[np.ndarray, np.ndarray]:
-        """Explicit momentum forcing (eastward, northward) on the grid (m s^-2)."""
+                         ) -> tuple[np.ndarray, np.ndarray] | None:
+        """Explicit momentum forcing (eastward, northward) on the grid (m s^-2); None where
+        the process has none in this run (e.g. a drag that is all implicit)."""
         raise NotImplementedError
 
     def spectral_tendency(self, time_s: float, fields: GridFields, out: np.ndarray) -> None:
