@@ -304,6 +304,34 @@ def test_short_timescales_stable(truncation):
     assert np.all(contrast > 0.9) and np.all(contrast < 1.05)
 
 
+@pytest.mark.parametrize("truncation", [21, 42])
+@pytest.mark.parametrize("variant", ["day-night", "zonal"])
+def test_short_varying_drag_stable(truncation, variant):
+    """Drag of 0.01 day that is not uniform on both components (issue 10): a dayside drag of
+    0.01 day over a drag-free nightside, or a zonal-only drag of 0.01 day. Its spatially varying
+    part is explicit; the automatic step is bounded by EXPLICIT_DAMPING_LIMIT / (r_max - r0)
+    (864 s for 0.01 day), inside the frozen-coefficient stability region
+    (tests/test_timestepping.py). 5 days at tau_rad = 0.1 day: finite, h > 0, and the drag does
+    slow the winds (max wind below that of the undragged run). Measured: T21 dt 864 s, max wind
+    777 m/s (day-night) and 752 m/s (zonal) against 2203 m/s without drag; T42 dt 502 s, 896
+    and 758 against 2245 m/s."""
+    atmosphere = {"radiative_timescale_days": 0.1, "drag_timescale_days": 0.01}
+    if variant == "day-night":
+        atmosphere["drag_timescale_nightside_days"] = math.inf
+    else:
+        atmosphere["drag_components"] = "zonal"
+    ds = _run(truncation, atmosphere=atmosphere, run={"days": 5.0, "stop_at_steady_state": False})
+    free = _run(truncation, atmosphere={"radiative_timescale_days": 0.1},
+                run={"days": 5.0, "stop_at_steady_state": False})
+    dt = ds.attrs["time_step_s"]
+    print(f"\n  T{truncation} {variant} drag 0.01 d: dt {dt:.0f} s, max wind "
+          f"{ds.max_wind_speed.values[-1]:.0f} m/s (no drag {free.max_wind_speed.values[-1]:.0f})")
+    assert float(ds.time.values[-1]) == pytest.approx(5.0)
+    assert np.all(np.isfinite(ds.h.values)) and ds.h.values.min() > 0
+    assert dt <= 864.0 * (1 + 1e-12)
+    assert ds.max_wind_speed.values[-1] < free.max_wind_speed.values[-1]
+
+
 # --- eccentric orbit ------------------------------------------------------------------------
 def test_eccentric_pseudo_synchronous_orbit():
     """e = 0.3, pseudo-synchronous spin (Hut 1981: Omega = 1.557 n), 3-day orbit, T21, output

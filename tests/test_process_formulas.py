@@ -127,3 +127,69 @@ def test_temperature_map_end_points_span_the_equilibrium(profile, low):
     big_h = model.mean_geopotential / model.gravity_m_s2
     assert attrs["nightside_thickness_m"] == pytest.approx(low * big_h, rel=1e-15)
     assert attrs["substellar_thickness_m"] == pytest.approx(1.6 * big_h, rel=1e-15)
+
+
+def _winds_and_fields(model, time_s=0.0):
+    fields, u, v, _ = _grid_fields(model, *_prescribed(model))
+    return fields, u, v
+
+
+def test_uniform_drag_is_all_implicit():
+    model = _model(drag_timescale_days=2.0)
+    drag = model.process("rayleigh_drag")
+    rates = drag.implicit_rates()
+    assert rates.vorticity == rates.divergence == 1 / (2.0 * DAY_S)
+    assert rates.thickness is None
+    assert drag.momentum_forcing(0.0, model.dynamics.fields) is None
+    assert drag.max_time_step_s() is None
+
+
+def _substellar_cosine(model, time_s):
+    lat, lon = model.grid.mesh()
+    orbit = model.orbit
+    lon_sub = 0.0 if orbit.is_steady else float(orbit.substellar_longitude(time_s))
+    return np.cos(lat) * np.cos(lon - lon_sub)
+
+
+@pytest.mark.parametrize("profile", ["dayside", "global"])
+def test_day_night_drag_against_its_definition(profile):
+    """r(x) = r_night + (r_day - r_night) s(x), s = (h_eq - min h_eq) / (max h_eq - min h_eq)
+    (max(0, cos psi) for the dayside profile, (1 + cos psi) / 2 for the global one), on both
+    components; implicit part r0 = min(r_day, r_night), so -r0 v (implicit) plus the explicit
+    forcing must be -r(x) v at every point. On an eccentric orbit at a time when the substellar
+    point has moved (the shape moves with it)."""
+    tau_day, tau_night = 0.05, 2.0
+    model = build_model(torrid.ModelConfig().replace(
+        numerics={"truncation": 21}, orbit={"eccentricity": 0.3, "rotation": "given",
+                                            "orbital_period_days": 4.0},
+        atmosphere={"drag_timescale_days": tau_day, "drag_timescale_nightside_days": tau_night,
+                    "equilibrium_profile": profile, "forcing_contrast": 0.5}))
+    drag = model.process("rayleigh_drag")
+    time_s = 0.9 * DAY_S
+    fields, u, v = _winds_and_fields(model)
+    cosine = _substellar_cosine(model, time_s)
+    assert abs(float(model.orbit.substellar_longitude(time_s))) > 0.05  # it has moved
+    r_day, r_night = 1 / (tau_day * DAY_S), 1 / (tau_night * DAY_S)
+    shape = np.maximum(cosine, 0) if profile == "dayside" else 0.5 * (1 + cosine)
+    rate = r_night + (r_day - r_night) * shape
+    r0 = drag.implicit_rates().vorticity
+    assert r0 == drag.implicit_rates().divergence == r_night
+    east, north = drag.momentum_forcing(time_s, fields)
+    scale = r_day * np.abs(u).max()
+    np.testing.assert_allclose(-r0 * u + east, -rate * u, rtol=0, atol=ROUND_OFF * scale)
+    np.testing.assert_allclose(-r0 * v + north, -rate * v, rtol=0, atol=ROUND_OFF * scale)
+    assert drag.max_time_step_s() == pytest.approx(1.0 / (r_day - r_night), rel=1e-15)
+
+
+def test_zonal_drag_acts_on_u_only():
+    """drag_components = zonal: d u/dt = -u / tau, nothing on v, all explicit (no implicit
+    part: a zonal-only drag is not diagonal in vorticity and divergence)."""
+    model = _model(drag_timescale_days=0.5, drag_components="zonal")
+    drag = model.process("rayleigh_drag")
+    fields, u, v = _winds_and_fields(model)
+    assert drag.implicit_rates() is None
+    east, north = drag.momentum_forcing(0.0, fields)
+    r = 1 / (0.5 * DAY_S)
+    np.testing.assert_allclose(east, -r * u, rtol=0, atol=ROUND_OFF * r * np.abs(u).max())
+    assert np.all(north == 0)
+    assert np.abs(v).max() > 100  # v is there, and left alone

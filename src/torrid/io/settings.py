@@ -23,6 +23,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from torrid.physics.cases import CASES
+from torrid.physics.processes.drag import COMPONENTS
 from torrid.physics.processes.relaxation import PROFILES
 
 
@@ -253,8 +254,17 @@ SETTINGS: tuple[Setting, ...] = (
             "radiative timescale", "tau_rad of the Newtonian relaxation; inf: no forcing",
             minimum=0, exclusive_minimum=True, allow_inf=True),
     Setting("atmosphere", "drag_timescale_days", float, math.inf, "days", "drag timescale",
-            "tau_drag of the Rayleigh drag; inf: no drag",
-            minimum=0, exclusive_minimum=True, allow_inf=True),
+            "tau_drag of the Rayleigh drag (on the dayside, where the nightside one differs); "
+            "inf: no drag", minimum=0, exclusive_minimum=True, allow_inf=True),
+    Setting("atmosphere", "drag_timescale_nightside_days", float, None, "days",
+            "nightside drag timescale",
+            "tau_drag on the nightside, joined to the dayside one through the equilibrium's "
+            "shape (a stand-in for magnetic drag on hot daysides); inf: none there",
+            minimum=0, exclusive_minimum=True, allow_inf=True,
+            unset="equal to drag_timescale_days"),
+    Setting("atmosphere", "drag_components", str, "both", "", "drag components",
+            "both: -v / tau_drag on both wind components (Showman & Polvani 2011); zonal: on "
+            "the eastward wind only", choices=COMPONENTS),
     Setting("atmosphere", "equilibrium_profile", str, "dayside", "", "equilibrium profile",
             "dayside: H + dH cos(lat) cos(lon - lon_sub) on the dayside, H on the nightside "
             "(Showman & Polvani 2011); global: the cosine everywhere (Matsuno 1966, Gill 1980)",
