@@ -255,6 +255,25 @@ def test_contrast_of_odd_legendre_field_against_analytic_hemisphere_means(tr, me
     assert a == pytest.approx(expected, abs=tol)
 
 
+def test_peak_contrast_of_analytic_fields(tr, mesh):
+    """(max h - min h) / (max h_eq - min h_eq) on the grid: 1 for h = h_eq, 0 for a flat layer,
+    and 0.5 for h = H + (h_eq - H) / 2 (analytic); NaN for a flat equilibrium."""
+    lat, lon = mesh
+    h_eq = equilibrium_thickness(lat, lon, mean_thickness_m=H_M, contrast=0.5,
+                                 substellar_longitude_rad=0.0)
+    fit = tr.to_grid(tr.to_spectral(h_eq))  # the truncated field the state holds
+    state = make_state(tr, h=h_eq)
+    assert diagnose(tr, state)["peak_contrast"] == pytest.approx(np.ptp(fit) / np.ptp(h_eq),
+                                                                  rel=ROUNDOFF)
+    assert abs(np.ptp(fit) / np.ptp(h_eq) - 1) < 0.02  # T42 keeps the kinked profile's range
+    assert diagnose(tr, make_state(tr))["peak_contrast"] == pytest.approx(0.0, abs=ROUNDOFF)
+    half = H_M + 0.5 * (fit - H_M)
+    assert diagnose(tr, make_state(tr, h=half))["peak_contrast"] == pytest.approx(
+        0.5 * np.ptp(fit) / np.ptp(h_eq), rel=1e-10)
+    assert np.isnan(diagnose(tr, make_state(tr), h_eq=np.full(tr.grid.shape, H_M))[
+        "peak_contrast"])
+
+
 # --- winds and energies --------------------------------------------------------------------------
 def test_equatorial_wind_max_speed_and_energies_of_solid_body_rotation(tr, mesh):
     lat, lon = mesh

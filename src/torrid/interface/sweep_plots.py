@@ -20,7 +20,8 @@ from torrid.interface.plots import plt, save_figure
 
 #: (variable, label, factor) of the panels of :func:`plot_sweep_diagnostics`.
 PANELS = (("hotspot_offset", "hotspot offset (degrees east)", 1.0),
-          ("day_night_contrast", "day-night contrast", 1.0),
+          ("day_night_contrast", "day-night contrast (hemisphere means)", 1.0),
+          ("peak_contrast", "peak-to-peak contrast", 1.0),
           ("equatorial_zonal_wind", "equatorial jet (zonal-mean u, km/s)", 1e-3))
 #: Small multiples: at most this many panels along either axis (evenly thinned beyond).
 MAX_PANELS_PER_AXIS = 8
@@ -137,7 +138,7 @@ def plot_sweep_diagnostics(table: xr.Dataset, path: str | os.PathLike | None = N
             values = held[name].transpose(dims[1], dims[0]).values * factor
             finite = values[np.isfinite(values)]
             mesh = ax.pcolormesh(xe, ye, np.ma.masked_invalid(values), shading="flat",
-                                 cmap="RdBu_r" if name != "day_night_contrast" else "magma",
+                                 cmap="magma" if name.endswith("contrast") else "RdBu_r",
                                  **_limits(name, finite))
             fig.colorbar(mesh, ax=ax, label=label, shrink=0.9)
             if min(values.shape) >= 2 and finite.size >= 4 and np.ptp(finite) > 0:
@@ -160,7 +161,7 @@ def plot_sweep_diagnostics(table: xr.Dataset, path: str | os.PathLike | None = N
 def _limits(name: str, finite: np.ndarray) -> dict:
     if finite.size == 0:
         return {}
-    if name == "day_night_contrast":
+    if name.endswith("contrast"):
         return {"vmin": min(0.0, float(finite.min())), "vmax": max(1.0, float(finite.max()))}
     limit = float(np.abs(finite).max()) or 1.0
     return {"vmin": -limit, "vmax": limit}

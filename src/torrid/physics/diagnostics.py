@@ -69,7 +69,11 @@ DIAGNOSTIC_VARIABLES: dict[str, tuple[str, str]] = {
         "degree", "eastward offset of the first longitudinal harmonic of the equatorial-band "
         "thickness from the substellar point"),
     "day_night_contrast": (
-        "1", "day-minus-night mean thickness relative to that of the radiative equilibrium"),
+        "1", "hemisphere-mean day-night contrast: day-minus-night mean thickness relative to "
+             "that of the radiative equilibrium"),
+    "peak_contrast": (
+        "1", "peak-to-peak contrast: maximum minus minimum thickness relative to that of the "
+             "radiative equilibrium"),
     "equatorial_zonal_wind": ("m s-1", "zonal-mean eastward wind on the equator"),
     "kinetic_energy": ("m3 s-2", "global mean of h |v|^2 / 2"),
     "available_potential_energy": ("m3 s-2", "global mean of g (h - mean h)^2 / 2"),
@@ -183,6 +187,13 @@ def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopot
             radiative equilibrium (cited from memory); this hemisphere-mean form is ours.
             A -> 1 when the layer follows its equilibrium (tau_rad -> 0) and A -> 0 for perfect
             redistribution. NaN if the equilibrium has no day-night difference.
+        ``peak_contrast`` (1)
+            (max h - min h) / (max h_eq - min h_eq) over the model-grid points: the
+            peak-to-peak form common in published shallow-water studies (Perez-Becker & Showman
+            2013 define their fractional day-night height difference this way, from memory; not
+            checked against the paper). Like A it tends to 1 for tau_rad -> 0 and to 0 for
+            tau_rad -> inf, but it sees local extremes (a hotspot, the cold Rossby gyres), so it
+            is larger than A when the layer is far from its equilibrium. NaN if h_eq is flat.
         ``equatorial_zonal_wind`` (m s-1)
             Zonal mean of u exactly on the equator (spin-1 ring synthesis at colatitude pi/2).
         ``kinetic_energy`` (m3 s-2)
@@ -263,6 +274,9 @@ def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopot
     reference = day_minus_night(h_eq)
     no_contrast = abs(reference) <= FLAT_FIELD_TOLERANCE * float(np.max(np.abs(h_eq)))
     out["day_night_contrast"] = np.nan if no_contrast else day_minus_night(h) / reference
+    equilibrium_range = float(np.ptp(h_eq))
+    flat = equilibrium_range <= FLAT_FIELD_TOLERANCE * float(np.max(np.abs(h_eq)))
+    out["peak_contrast"] = np.nan if flat else float(np.ptp(h)) / equilibrium_range
 
     # winds
     wind_lm = _wind_coefficients(transforms, state[VORTICITY], state[DIVERGENCE])
