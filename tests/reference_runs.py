@@ -4,7 +4,9 @@
 the SHA-256 of every data array (float64 bytes) and the arrays themselves (time series, and the
 last snapshot of each map), so that ``tests/test_reference_runs.py`` can show the same bytes, or
 name the largest relative difference when a refactoring changes the order of floating-point
-operations. Written once before a refactoring, on the machine that runs the tests.
+operations. Written once before a refactoring, on the machine that runs the tests (first before
+issue 9; the eccentric example's record again when its distance exponent became 0.5 in issue
+10, a deliberate change of the physics; the other two records did not change).
 """
 
 from __future__ import annotations

@@ -182,9 +182,12 @@ def test_maps_that_go_non_positive_are_refused(planet_run):
 def test_eccentric_run_follows_the_changing_geometry():
     """A synthetic eccentric run whose map is a fixed small first harmonic about the moving
     substellar point: edge-on, F = a + b cos(180 deg - theta) = a - b sin(nu + omega) with
-    nu from Kepler's equation (solved here with brentq)."""
+    nu from Kepler's equation (solved here with brentq). distance_exponent = 0: the forcing, and
+    so the temperature map's end points, do not follow the star's distance here (that scaling is
+    checked in test_eccentric_temperature_end_points_follow_the_forcing)."""
     e, omega_deg, period_days = 0.3, 40.0, 3.0
-    config = torrid.ModelConfig().replace(orbit={"eccentricity": e}, numerics={"truncation": 21})
+    config = torrid.ModelConfig().replace(orbit={"eccentricity": e, "distance_exponent": 0.0},
+                                          numerics={"truncation": 21})
     lat_deg = np.degrees(np.arcsin(np.polynomial.legendre.leggauss(32)[0]))
     lon_deg = -180.0 + 360.0 * np.arange(64) / 64
     times = np.linspace(0.0, 2 * period_days, 241)
@@ -373,3 +376,36 @@ def test_band_outside_the_blackbody_range_is_refused(tmp_path):
     response.write_text("0.01,1\n0.02,1\n")
     with pytest.raises(ObserverError, match="xray.csv: response = 0.01-0.02 micron"):
         read_response(response)
+
+
+@pytest.mark.parametrize("k", [0.5, 2.0])
+def test_eccentric_temperature_end_points_follow_the_forcing(k, tmp_path):
+    """Issue 10: on an eccentric orbit (e = 0.3) the forcing's substellar excess at periastron is
+    (1 - e)^-k times its mean-distance value (the relaxation's equilibrium, the model's own
+    numbers), and the phase curve's day end point follows it: T_day (a / r)^k at each sample's
+    time, (1 - e)^-k T_day at periastron (a / r = 1 / (1 - e), the periastron distance of a
+    Keplerian orbit, any textbook)."""
+    from torrid.workflow.setup import build_model
+
+    e = 0.3
+    config = torrid.ModelConfig().replace(
+        numerics={"truncation": 10}, run={"days": 1.2, "output_interval_days": 0.02,
+                                          "stop_at_steady_state": False},
+        orbit={"eccentricity": e, "distance_exponent": k, "rotation": "given",
+               "orbital_period_days": 1.0})
+    model = build_model(config)
+    relaxation = model.process("newtonian_relaxation")
+    g = model.gravity_m_s2
+    excess = relaxation.equilibrium(0.0).max() / g - relaxation.mean_geopotential / g
+    assert relaxation.state_at(0.0)[1] == pytest.approx(1.0 * (1 - e) ** -k, rel=1e-12)
+    lat, lon = model.grid.mesh()
+    mean_distance = relaxation.mean_geopotential / g * np.maximum(
+        np.cos(lat) * np.cos(lon - relaxation.state_at(0.0)[0]), 0).max()  # contrast 1
+    assert excess == pytest.approx((1 - e) ** -k * mean_distance, rel=1e-12)
+    ds = torrid.run(config)
+    pc = phase_curve(ds, day_temperature=2000.0, night_temperature=1000.0, phases=72)
+    times_s = pc["time"].values * 86400
+    ratio = np.asarray(model.orbit.distance_ratio(times_s))
+    np.testing.assert_allclose(pc["day_temperature"].values, 2000.0 * ratio ** -k, rtol=1e-12)
+    peri = 2000.0 * (1 - e) ** -k
+    assert pc["day_temperature"].max() == pytest.approx(peri, rel=2e-3)  # the sample nearest

@@ -284,8 +284,10 @@ SETTINGS: tuple[Setting, ...] = (
     Setting("orbit", "orbital_period_days", float, None, "days", "orbital period",
             "orbital period", minimum=0, exclusive_minimum=True,
             unset="|planet.rotation_period_days|"),
-    Setting("orbit", "distance_exponent", float, 2.0, "1", "distance exponent",
-            "k in forcing contrast x (a / r)^k on an eccentric orbit", minimum=0, maximum=10),
+    Setting("orbit", "distance_exponent", float, 0.5, "1", "distance exponent",
+            "k in forcing contrast x (a / r)^k on an eccentric orbit: 0.5 as the thickness "
+            "stands for temperature and T_eq falls as r^-1/2 (2: flux scaling)",
+            minimum=0, maximum=10),
     Setting("orbit", "initial_mean_anomaly_deg", float, 0.0, "degree",
             "initial mean anomaly", "mean anomaly at the start (0 = periastron)",
             minimum=-360, maximum=360),

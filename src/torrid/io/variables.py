@@ -125,6 +125,9 @@ PHASE_VARIABLES: dict[str, Variable] = {
     "sub_observer_longitude": Variable(("phase",), "degree",
                                        "sub-observer longitude east of the substellar point"),
     "time": Variable(("phase",), "days", "simulated time of each phase sample"),
+    "day_temperature": Variable(("phase",), "K",
+                                "day end point of the temperature map at the sample's time: "
+                                "T_day (a / r)^k, the substellar equilibrium's temperature"),
     "eclipse_depth": Variable(_P, "ppm", "flux ratio at mid-eclipse"),
     "nightside_flux": Variable(_P, "ppm", "flux ratio at mid-transit"),
     "amplitude": Variable(_P, "ppm", "peak-to-peak amplitude of the curve"),

@@ -90,8 +90,11 @@ def thickness_to_temperature(thickness_m, nightside_thickness_m, forcing_contras
         H, the nightside equilibrium thickness (m); broadcast against ``thickness_m``.
     forcing_contrast : float or array_like
         dH / H (> 0): the substellar equilibrium thickness is H (1 + dH/H).
-    night_temperature_k, day_temperature_k : float
-        Temperatures (K) at h = H and h = H (1 + dH/H); 0 < T_night <= T_day.
+    night_temperature_k : float
+        Temperature (K) at h = H; > 0.
+    day_temperature_k : float or array_like
+        Temperature (K) at h = H (1 + dH/H), >= T_night; broadcast against ``thickness_m``
+        (a time series on an eccentric orbit).
 
     Raises
     ------
@@ -112,9 +115,9 @@ def thickness_to_temperature(thickness_m, nightside_thickness_m, forcing_contras
     if not night_temperature_k > 0:
         raise TemperatureMapError(f"night_temperature = {night_temperature_k!r} K: must be > 0 "
                                   "(a derived one is 0 for redistribution = 0)")
-    if not day_temperature_k >= night_temperature_k:
-        raise TemperatureMapError(f"day_temperature = {day_temperature_k!r} K: must be >= "
-                                  f"night_temperature ({night_temperature_k!r} K)")
+    if not np.all(np.asarray(day_temperature_k) >= night_temperature_k):
+        raise TemperatureMapError(f"day_temperature = {np.min(day_temperature_k)!r} K: must be "
+                                  f">= night_temperature ({night_temperature_k!r} K)")
     t = night_temperature_k + (day_temperature_k - night_temperature_k) * (h - big_h) / (big_h * c)
     finite = np.isfinite(t)
     coldest = float(np.min(t[finite])) if finite.any() else 1.0

@@ -18,7 +18,10 @@ series over the last orbit: the phase sample at time t (t within the last orbita
 run) sees the two snapshots around t, each carried along with the substellar point to time t
 (a map that moves with the star between snapshots), linearly weighted in time, with the
 observer direction of time t. Snapshots must then be dense in time (output interval well
-below the period; a coarser one is warned about).
+below the period; a coarser one is warned about). Each snapshot's temperature map follows the
+star's distance as the forcing does: its equilibrium contrast is dH/H (a/r)^k and its day end
+point T_day (a/r)^k (k = orbit.distance_exponent, 0.5 by default: T_eq ~ r^-1/2), while the
+nightside end point stays T_night; ``day_temperature`` records the day end point per sample.
 
 Headline numbers (per sweep point): eclipse depth (flux ratio at mid-eclipse), nightside flux
 (at mid-transit), peak-to-peak amplitude, the phases of the maximum and minimum (refined
@@ -51,6 +54,7 @@ from torrid.physics.curvefeatures import first_harmonic, parabolic_extremum, wra
 from torrid.physics.disk import DiskQuadrature
 from torrid.physics.orbit import Orbit
 from torrid.physics.planck import Band, tabulated_band, tophat_band
+from torrid.physics.processes.relaxation import equilibrium_extremes
 from torrid.physics.temperature import (cowan_agol_temperatures, irradiation_temperature,
                                         thickness_to_temperature)
 from torrid.physics.viewing import (eclipse_phase, orbital_angle, sub_observer_latitude,
@@ -88,15 +92,23 @@ def end_temperatures(settings: ObserverSettings) -> tuple[float, float, float]:
     return night, day, t0
 
 
+def run_configuration(ds: xr.Dataset) -> ModelConfig | None:
+    """The run's configuration (None if the dataset has none, e.g. a sweep table)."""
+    if "configuration_json" not in ds.attrs:
+        return None
+    try:
+        config = ModelConfig.from_dict(config_from_attrs(ds.attrs))
+    except (ValueError, KeyError) as err:
+        raise PhaseCurveError(f"its configuration_json is not a valid configuration ({err})")
+    if not config.is_planet:
+        raise PhaseCurveError(f"a standard case ({config.case.name}), not a planet run")
+    return config
+
+
 def run_orbit(ds: xr.Dataset) -> tuple[Orbit | None, str]:
     """The run's orbit rebuilt from its configuration (None: synchronous circular assumed)."""
-    if "configuration_json" in ds.attrs:
-        try:
-            config = ModelConfig.from_dict(config_from_attrs(ds.attrs))
-        except (ValueError, KeyError) as err:
-            raise PhaseCurveError(f"its configuration_json is not a valid configuration ({err})")
-        if not config.is_planet:
-            raise PhaseCurveError(f"a standard case ({config.case.name}), not a planet run")
+    config = run_configuration(ds)
+    if config is not None:
         omega, period_s = rotation_rate(config)
         return Orbit(orbital_period_s=period_s, eccentricity=config.orbit.eccentricity,
                      rotation_rate_s=omega, initial_mean_anomaly_rad=math.radians(
@@ -242,15 +254,50 @@ def _time_series_disk(ds, settings, orbit: Orbit, quad: DiskQuadrature, band: Ba
     else:
         lon_sub = orbit.substellar_longitude(times_s[used])
     h = ds["h"].isel(time=used).transpose("time", *MAP_DIMS).values
-    temperature = thickness_to_temperature(h, float(thickness_scale[0]), float(thickness_scale[1]),
-                                           *end_points)
+    scale = _distance_scaling(ds, orbit, times_s[used])
+    low, high, t_day = _snapshot_end_points(ds, thickness_scale, end_points, scale)
+    temperature = thickness_to_temperature(h, low[:, None, None],
+                                           (high / low - 1)[:, None, None], end_points[0],
+                                           t_day[:, None, None])
     intensity = band.radiance(temperature)
     d0 = quad.integrate(intensity, obs_lat, lon_sub[local_k] + offset, snapshot=local_k)
     d1 = quad.integrate(intensity, obs_lat, lon_sub[local_k1] + offset, snapshot=local_k1)
     days = (start / SECONDS_PER_DAY, times_s[-1] / SECONDS_PER_DAY)
-    return ((1 - alpha) * d0 + alpha * d1, t / SECONDS_PER_DAY,
+    day_temperature = _snapshot_end_points(ds, thickness_scale, end_points,
+                                           _distance_scaling(ds, orbit, t, exact=True))[2]
+    return ((1 - alpha) * d0 + alpha * d1, (t / SECONDS_PER_DAY, day_temperature),
             f"time series over the last orbit (days {days[0]:g}-{days[1]:g}, {used.size} "
             "snapshots; linear in time, each carried with the substellar point)")
+
+
+def _distance_scaling(ds, orbit: Orbit, times_s: np.ndarray, exact: bool = False) -> np.ndarray:
+    """(a / r)^k at the given times (k: the run's orbit.distance_exponent): the factor of the
+    forcing contrast, read from the run's star_distance_ratio at snapshot times (or from the
+    orbit itself)."""
+    config = run_configuration(ds)
+    k = config.orbit.distance_exponent if config is not None else 0.0
+    if "star_distance_ratio" in ds and not exact:
+        index = np.searchsorted(ds["time"].values * SECONDS_PER_DAY, times_s)
+        ratio = ds["star_distance_ratio"].values[np.clip(index, 0, ds.sizes["time"] - 1)]
+    else:
+        ratio = np.asarray(orbit.distance_ratio(times_s), dtype=float)
+    return ratio ** (-k)
+
+
+def _snapshot_end_points(ds, thickness_scale, end_points, scale: np.ndarray):
+    """The temperature map's end points at times where the forcing contrast is scaled by
+    ``scale`` = (a / r)^k: the equilibrium's smallest and largest thickness (m) and the day
+    temperature T_day (a / r)^k (K) (T_night is fixed: the nightside equilibrium does not
+    follow the star)."""
+    config = run_configuration(ds)
+    big_h, contrast = float(thickness_scale[0]), float(thickness_scale[1])
+    profile = "dayside"
+    if config is not None:
+        atm = config.atmosphere
+        big_h = atm.mean_geopotential_m2_s2 / config.planet.gravity_m_s2
+        contrast, profile = atm.forcing_contrast, atm.equilibrium_profile
+    low, high = equilibrium_extremes(big_h, contrast * scale, profile)
+    return np.broadcast_to(low, scale.shape), high, end_points[1] * scale
 
 
 def _variable(name: str, values, parameters=()) -> xr.Variable:
@@ -291,8 +338,9 @@ def _assemble(ds, settings, band, ratio, disk, phases, phase_ecl, coords, param_
             value = value.expand_dims([d for d in p if d not in value.dims]).transpose(*p).values
         data[f"map_{name}"] = _variable(f"map_{name}", np.broadcast_to(value, curve.shape[:-1]),
                                         p)
-    if times is not None:
-        data["time"] = _variable("time", times[:n])
+    if times is not None:  # a time-dependent orbit: each sample's time and day end point
+        data["time"] = _variable("time", times[0][:n])
+        data["day_temperature"] = _variable("day_temperature", times[1][:n])
     out = xr.Dataset(data, coords={"phase": _variable("phase", phases), **coords})
     out.attrs.update(_attributes(ds, settings, band, info))
     return out
@@ -315,7 +363,11 @@ def _attributes(ds, settings: ObserverSettings, band: Band, info: dict) -> dict:
         "irradiation_temperature_K": info["t0"], "albedo": s.albedo,
         "redistribution": s.redistribution,
         "argument_of_periastron_deg": s.argument_of_periastron, "phases": s.phases,
-        "temperature_map": "T = T_night + (T_day - T_night) (h - H) / (H dH/H)",
+        "temperature_map": "T = T_night + (T_day - T_night) (h - h_min) / (h_max - h_min), "
+                           "h_min and h_max the equilibrium's smallest and largest thickness; "
+                           "on an eccentric orbit each snapshot's h_max follows the forcing "
+                           "contrast dH/H (a/r)^k and T_day becomes T_day (a/r)^k "
+                           "(k = orbit.distance_exponent)",
         "rotation_sense": int(info["sense"]),
         "map_source": info["map_source"], "orbit_source": info["orbit_source"],
         "source_run": info["source"],
