@@ -295,6 +295,11 @@ def test_cli_writes_curve_plot_and_csv(run_file, tmp_path, capsys):
                  "--inclination", "85", "--energy"]) == 0
     stdout = capsys.readouterr().out
     assert "eclipse depth" in stdout and str(out) in stdout
+    with xr.open_dataset(out) as pc:  # both map hotspot measures beside the curve's peak
+        for name in ("offset_of_maximum", "harmonic_offset", "map_hotspot_offset",
+                     "map_hotspot_offset_harmonic"):
+            assert f"{float(pc[name]):+.1f} deg" in stdout, name
+    assert "(first harmonic)" in stdout and "(equatorial maximum)" in stdout
     assert (tmp_path / "curve.png").read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
     with xr.open_dataset(out) as pc:
         assert pc.sizes["phase"] == 120 and pc.attrs["inclination_deg"] == 85.0
@@ -409,3 +414,20 @@ def test_eccentric_temperature_end_points_follow_the_forcing(k, tmp_path):
     np.testing.assert_allclose(pc["day_temperature"].values, 2000.0 * ratio ** -k, rtol=1e-12)
     peri = 2000.0 * (1 - e) ** -k
     assert pc["day_temperature"].max() == pytest.approx(peri, rel=2e-3)  # the sample nearest
+
+
+def test_eccentric_offsets_are_named_as_phase_offsets():
+    """On a time-dependent orbit the curve's offsets are 360 x a phase difference, a time offset
+    rather than a longitude (issue 10): named phase_offset_of_maximum etc., labelled in degrees
+    of orbital phase; the longitude names are absent."""
+    config = torrid.ModelConfig().replace(
+        numerics={"truncation": 10}, run={"days": 1.2, "output_interval_days": 0.04,
+                                          "stop_at_steady_state": False},
+        orbit={"eccentricity": 0.2, "rotation": "given", "orbital_period_days": 1.0})
+    pc = phase_curve(torrid.run(config), phases=36)
+    for timed in ("phase_offset_of_maximum", "phase_offset_of_minimum", "harmonic_phase_offset"):
+        assert "degrees of orbital phase" in pc[timed].attrs["long_name"]
+    assert "offset_of_maximum" not in pc and "harmonic_offset" not in pc
+    from torrid.interface.cli.phase import summary_line
+
+    assert "deg of phase" in summary_line(pc)

@@ -43,8 +43,10 @@ def plot_phase_curve(pc: xr.Dataset, path: str | os.PathLike | None = None,
                         ha="left", va="top", fontsize=8, color="grey")
     if flux.ndim == 1:
         peak = float(pc["phase_of_maximum"])
+        timed = "phase_offset_of_maximum" in pc  # offsets in degrees of orbital phase
+        peak_offset = float(pc["phase_offset_of_maximum" if timed else "offset_of_maximum"])
         ax.plot(peak, float(pc["maximum_flux_ratio"]), "v", color="tab:red", ms=8,
-                label=f"curve maximum ({float(pc['offset_of_maximum']):+.1f} deg)")
+                label=f"curve maximum ({peak_offset:+.1f} deg{' of phase' if timed else ''})")
         offset = float(pc["map_hotspot_offset"])
         if np.isfinite(offset):
             where = (ecl - pc.attrs.get("rotation_sense", 1) * offset / 360.0) % 1.0

@@ -142,6 +142,15 @@ PHASE_VARIABLES: dict[str, Variable] = {
     "harmonic_amplitude": Variable(_P, "ppm", "peak-to-peak amplitude of the first harmonic"),
     "harmonic_offset": Variable(_P, "degree", "(eclipse phase - phase of the first harmonic's "
                                               "maximum) x 360"),
+    "phase_offset_of_maximum": Variable(
+        _P, "degree", "(eclipse phase - phase of maximum) x 360, in degrees of orbital phase: "
+                      "a time offset, not a longitude (time-dependent orbits)"),
+    "phase_offset_of_minimum": Variable(
+        _P, "degree", "(transit phase - phase of minimum) x 360, in degrees of orbital phase: "
+                      "a time offset, not a longitude (time-dependent orbits)"),
+    "harmonic_phase_offset": Variable(
+        _P, "degree", "(eclipse phase - phase of the first harmonic's maximum) x 360, in degrees "
+                      "of orbital phase: a time offset, not a longitude (time-dependent orbits)"),
     "eclipse_phase": Variable((), "1", "orbital phase of mid-eclipse"),
     "map_hotspot_offset": Variable(
         _P, "degree", f"the map's hotspot offset (equatorial maximum){_MAP_OFFSET}"),

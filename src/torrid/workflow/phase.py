@@ -30,6 +30,9 @@ offsets, offset_of_maximum = (phase_eclipse - phase_max) x 360 deg (positive = p
 eclipse = eastward hotspot; phase_eclipse = 0.5 on a circular orbit) and
 offset_of_minimum = -phase_min x 360 deg (wrapped to [-180, 180)), the first harmonic of the
 curve (its peak-to-peak amplitude and offset), and the map's own hotspot offsets from the run.
+On a time-dependent orbit these curve offsets are 360 x a phase difference, a time offset rather
+than a longitude, and are named phase_offset_of_maximum, phase_offset_of_minimum and
+harmonic_phase_offset (in degrees of orbital phase) instead.
 Those are east-positive in grid longitude: on a retrograde run (attribute rotation_sense = -1)
 the planet turns westward in grid longitudes, its hotspot offset is negative where the curve
 still peaks before eclipse (a mirror image of planet, orbit and observer shows the same light
@@ -60,6 +63,12 @@ from torrid.physics.temperature import (cowan_agol_temperatures, irradiation_tem
 from torrid.physics.viewing import (eclipse_phase, orbital_angle, sub_observer_latitude,
                                     sub_observer_offset, transit_mean_anomaly)
 from torrid.workflow.setup import rotation_rate
+
+#: On time-dependent (eccentric or non-synchronous) orbits the curve's offsets measure time in
+#: degrees of orbital phase, not a hotspot longitude, and are named so.
+PHASE_OFFSET_NAMES = {"offset_of_maximum": "phase_offset_of_maximum",
+                      "offset_of_minimum": "phase_offset_of_minimum",
+                      "harmonic_offset": "harmonic_phase_offset"}
 
 #: fewer snapshots than this per orbit in a time-dependent run are warned about
 MIN_SNAPSHOTS_PER_ORBIT = 20
@@ -331,6 +340,9 @@ def _assemble(ds, settings, band, ratio, disk, phases, phase_ecl, coords, param_
         "harmonic_offset": wrap_degrees((phase_ecl - phase_h) * 360),
         "eclipse_phase": phase_ecl,
     }
+    if times is not None:  # a time-dependent orbit: these offsets are times, not longitudes
+        per_point = {PHASE_OFFSET_NAMES.get(name, name): values
+                     for name, values in per_point.items()}
     data = {name: _variable(name, values, p) for name, values in per_point.items()}
     for name in ("hotspot_offset", "hotspot_offset_harmonic"):
         value = _per_point(ds, f"final_{name}", False, "", alias=name)

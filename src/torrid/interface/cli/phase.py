@@ -60,10 +60,18 @@ def handle(args: argparse.Namespace) -> int:
 
 
 def summary_line(pc) -> str:
-    """One line of the headline numbers of a (single) phase curve."""
+    """One line of the headline numbers of a (single) phase curve: the curve's peak and its
+    first harmonic beside both hotspot measures of the map (its equatorial maximum and the
+    first harmonic of the equatorial band, which is what the curve follows)."""
+    timed = "phase_offset_of_maximum" in pc  # a time-dependent orbit: offsets in phase
+    peak = float(pc["phase_offset_of_maximum" if timed else "offset_of_maximum"])
+    harmonic = float(pc["harmonic_phase_offset" if timed else "harmonic_offset"])
+    unit = "deg of phase" if timed else "deg"
     return (f"eclipse depth {float(pc.eclipse_depth):.1f} ppm, nightside "
-            f"{float(pc.nightside_flux):.1f} ppm, amplitude {float(pc.amplitude):.1f} ppm; peak at phase "
-            f"{float(pc.phase_of_maximum):.3f} (offset {float(pc.offset_of_maximum):+.1f} deg; "
-            f"map hotspot {float(pc.map_hotspot_offset):+.1f} deg); {pc.attrs['band']}, "
+            f"{float(pc.nightside_flux):.1f} ppm, amplitude {float(pc.amplitude):.1f} ppm; "
+            f"curve peak at phase {float(pc.phase_of_maximum):.3f} (offset {peak:+.1f} {unit}, "
+            f"first harmonic {harmonic:+.1f} {unit}); map hotspot "
+            f"{float(pc.map_hotspot_offset_harmonic):+.1f} deg (first harmonic), "
+            f"{float(pc.map_hotspot_offset):+.1f} deg (equatorial maximum); {pc.attrs['band']}, "
             f"T_night {pc.attrs['night_temperature_K']:.0f} K, T_day "
             f"{pc.attrs['day_temperature_K']:.0f} K")
