@@ -26,16 +26,17 @@ geopotential c^2) the steady state is Gill's system with
 for phi_eq' = c^2 (dH/H) F(x) exp(-y^2 / 4) the prediction is phi' / c^2 = -eps (dH/H) p_Gill
 and u / c = -eps (dH/H) u_Gill, with p_Gill, u_Gill Gill's response to Q = F exp(-y^2 / 4).
 
-The mass-exchange momentum term R = -v Q / h of the day-night forcing is left out: it is a
-product of two perturbations, O(dH/H) = 1e-3 relative to the linear terms here.
+The mass-exchange momentum term R = -v Q / h of the day-night forcing is switched off
+(``atmosphere.mass_exchange_momentum = false``): it is a product of two perturbations, O(dH/H)
+= 1e-3 relative to the linear terms here, and Gill's problem has none.
 
 Parameters: Gill's eps = 0.1 and Lx = 2; L / a = 0.15 for the deformation radius
 L = sqrt(c / beta) = sqrt(c a / (2 Omega)) (so L_G / a = 0.106). Only these ratios matter; with
 a = 1e8 m and Omega = 2.1e-5 s^-1 they give c = 94.5 m/s, L_G = 10600 km, tau = 13.0 days.
 (Hot-Jupiter values, L / a ~ 0.5-1, are outside the beta-plane regime: measured correlation
-0.948 at L / a = 0.5, 0.986 at 0.3, 0.9987 at 0.15, 0.9992 at 0.1.) Model: built from the
-physics classes (no configuration layer), T42, dt = 0.5 / (2 Omega) = 3.3 h, from rest, 8 tau
-(755 steps). Halving or doubling dt, 12 tau instead of 8, T21/T63/T85, a 100x shorter
+0.948 at L / a = 0.5, 0.986 at 0.3, 0.9987 at 0.15, 0.9992 at 0.1.) Model: built from a
+configuration with the real process modules (issue 10; only the equilibrium's shape is Gill's,
+see run_linear_model), T42, dt = 0.5 / (2 Omega) = 3.3 h, from rest, 8 tau (755 steps). Halving or doubling dt, 12 tau instead of 8, T21/T63/T85, a 100x shorter
 hyperdiffusion time or dH/H = 0.1 change the correlation by < 1e-4 (measured).
 Measured on the 2-core machine: about 1.3 s per run; the whole module about 3 s.
 """
@@ -45,15 +46,13 @@ import time
 import numpy as np
 import pytest
 
+import torrid
 from gill_solution import gill_fields, heating_profile, kelvin_amplitude, rossby_amplitude
 from torrid.physics.fields import grid_state
 from torrid.physics.grid import SpectralGrid
-from torrid.physics.linear import LinearTerms
-from torrid.physics.processes import ImplicitRates, Process
-from torrid.physics.processes.hyperdiffusion import hyperdiffusion_rates
-from torrid.physics.tendencies import GEOPOTENTIAL, Dynamics
-from torrid.physics.timestepping import IMEXStepper
+from torrid.physics.state import GEOPOTENTIAL
 from torrid.physics.transforms import Transforms
+from torrid.workflow.setup import build_model
 
 EPS = 0.1  # Gill's damping in his units (his choice, from memory)
 LX = 2.0  # half-width of the heating in Gill's units (his choice, from memory)
@@ -131,21 +130,17 @@ def test_gill_closed_form_is_continuous_and_bounded():
 # the model
 # --------------------------------------------------------------------------------------------
 
-class GillForcing(Process):
-    """A process (torrid.physics.processes.base): the source (Phi_eq - Phi_mean) / tau, no
-    momentum forcing (the mass-exchange term is second order, left out)."""
-
-    name = "gill_forcing"
-
-    def __init__(self, source):
-        self.source = source
-
-    def spectral_tendency(self, time_s, fields, out):
-        out[GEOPOTENTIAL] += self.source
-
-
 def run_linear_model(deformation_over_radius, truncation=42, n_tau=8.0, coriolis_step=0.5):
     """Steady state of the model forced by Gill's heating shape.
+
+    The model is built from a configuration by the package itself (``build_model``): the real
+    process modules with the mass-exchange term off (``atmosphere.mass_exchange_momentum =
+    false``), equal uniform relaxation and drag (``tau_rad = tau_drag = tau``), del^8
+    hyperdiffusion, the global equilibrium profile. Gill's closed form is for his heating shape,
+    not a global cosine, so that shape is set as the relaxation's equilibrium (its cached
+    Phi_eq and source, the one thing the test replaces); every other term (Coriolis, gravity
+    waves, the relaxation's implicit rate and explicit source, the drag, the hyperdiffusion,
+    the time step) is the model's own.
 
     ``deformation_over_radius`` is L / a with L = sqrt(c / beta) = sqrt(c a / (2 Omega)), the
     usual equatorial deformation radius (Gill's unit is L / sqrt(2)); c follows from it.
@@ -158,36 +153,45 @@ def run_linear_model(deformation_over_radius, truncation=42, n_tau=8.0, coriolis
     phi_mean = c * c
     length = np.sqrt(c / (2 * beta))  # Gill's unit L_G
     tau = np.sqrt(2 * beta * c) ** -1 / EPS  # tau_rad = tau_drag
-    grid = SpectralGrid(truncation)
-    tr = Transforms(grid, RADIUS)
+    dt = coriolis_step / (2 * OMEGA)
+    day = 86400.0
+    config = torrid.ModelConfig().replace(
+        planet={"radius_m": RADIUS, "rotation_period_days": 2 * np.pi / OMEGA / day,
+                "gravity_m_s2": 10.0},
+        atmosphere={"mean_geopotential_m2_s2": phi_mean, "forcing_contrast": CONTRAST,
+                    "radiative_timescale_days": tau / day, "drag_timescale_days": tau / day,
+                    "mass_exchange_momentum": False, "equilibrium_profile": "global"},
+        # del^8, e-folding tau at l = N: a rate below 0.004 / tau at l < N / 2
+        numerics={"truncation": truncation, "hyperdiffusion_days": tau / day,
+                  "hyperdiffusion_order": 4, "time_step_s": dt},
+        run={"output_interval_days": 100 * dt / day, "stop_at_steady_state": False})
+    model = build_model(config)
+    assert [p.name for p in model.processes] == ["hyperdiffusion", "rayleigh_drag",
+                                                 "newtonian_relaxation"]
+    tr, grid = model.transforms, model.grid
     lat, lon = grid.mesh()
     x = RADIUS * np.angle(np.exp(1j * lon)) / length  # longitudes wrapped to (-pi, pi]
     y = RADIUS * lat / length
+    relaxation = model.process("newtonian_relaxation")
     phi_eq = phi_mean * CONTRAST * heating_profile(x, LX) * np.exp(-y**2 / 4)
-    forcing = GillForcing(tr.to_spectral(phi_eq / tau))
-    l = grid.degree.astype(float)
-    # del^8, e-folding tau at l = N: a rate below 0.004 / tau at l < N / 2
-    nu = hyperdiffusion_rates(l, truncation, tau, 4)
-    linear = LinearTerms.from_rates(
-        l * (l + 1) / RADIUS**2, phi_mean,
-        [ImplicitRates(nu, nu, nu), ImplicitRates(1 / tau, 1 / tau, 1 / tau)])
-    dynamics = Dynamics(tr, 2 * OMEGA * np.sin(lat), phi_mean, [forcing])
-    dt = coriolis_step / (2 * OMEGA)
+    relaxation._phi_eq = phi_mean + phi_eq  # Gill's shape as the (steady) equilibrium
+    relaxation._source = tr.to_spectral(phi_eq * relaxation.rate)
+    relaxation._cached_time = 0.0
     state = np.zeros((3, grid.ncoeff), dtype=complex)
-    stepper = IMEXStepper(dynamics, linear, dt, state.shape)
-    nsteps = int(np.ceil(n_tau * tau / dt))
-    steps_per_tau = int(round(tau / dt))
+    stepper = model.stepper
+    nsteps = int(np.ceil(n_tau * tau / stepper.dt))
+    steps_per_tau = int(round(tau / stepper.dt))
     start = time.perf_counter()
     for i in range(nsteps):
         if i == nsteps - steps_per_tau:
             one_tau_before = state.copy()
-        state = stepper.step(state, i * dt)
+        state = stepper.step(state, i * stepper.dt)
     elapsed = time.perf_counter() - start
     change = float(np.abs(state - one_tau_before).max() / np.abs(state).max())
     fields = grid_state(tr, state)
     return dict(state=state, transforms=tr, lat=lat, x=x, y=y, c=c, phi_mean=phi_mean,
-                length=length, tau=tau, dt=dt, nsteps=nsteps, elapsed=elapsed, change=change,
-                p=fields["geopotential_deviation"] / phi_mean, u=fields["u"] / c,
+                length=length, tau=tau, dt=stepper.dt, nsteps=nsteps, elapsed=elapsed,
+                change=change, p=fields["geopotential_deviation"] / phi_mean, u=fields["u"] / c,
                 v=fields["v"] / c, truncation=truncation, ratio=deformation_over_radius)
 
 
