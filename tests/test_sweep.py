@@ -53,10 +53,11 @@ def _write(path: Path, text: str) -> Path:
 
 
 def _comparable(path: Path) -> xr.Dataset:
-    """A table as a plain xarray user opens it, without its creation date."""
+    """A table as a plain xarray user opens it, without its creation date and history."""
     with xr.open_dataset(path) as ds:
         ds = ds.load()
     ds.attrs.pop("date_created")
+    ds.attrs.pop("history")
     return ds
 
 

@@ -13,6 +13,7 @@ import numpy as np
 import xarray as xr
 
 from torrid.io.atomic import atomic_path
+from torrid.io.cf import DAYS_COORDINATE, cf_dataset, netcdf_encoding
 from torrid.io.variables import COORDINATES, VARIABLES
 
 
@@ -54,7 +55,9 @@ def build_dataset(times_days, latitude_deg, longitude_deg, series: dict[str, lis
     attrs : dict
         Global attributes.
     """
-    coords = {"time": np.asarray(times_days, float), "lat": latitude_deg, "lon": longitude_deg}
+    times_days = np.asarray(times_days, float)
+    coords = {"time": times_days, DAYS_COORDINATE: ("time", times_days), "lat": latitude_deg,
+              "lon": longitude_deg}
     data = {}
     for name, values in {**{k: np.stack(v) for k, v in series.items()}, **static}.items():
         var = VARIABLES[name]
@@ -67,11 +70,12 @@ def build_dataset(times_days, latitude_deg, longitude_deg, series: dict[str, lis
 
 
 def write_atomic(ds: xr.Dataset, path: str | os.PathLike, overwrite: bool = False) -> Path:
-    """Write ``ds`` to netCDF4 at ``path`` via a temporary file in the same folder."""
+    """Write ``ds`` to netCDF4 at ``path`` via a temporary file in the same folder, by the CF
+    rules of :mod:`torrid.io.cf`."""
     path = check_writable(path, overwrite)
-    encoding = {name: {"zlib": True, "complevel": 1} for name in ds.data_vars}
     with atomic_path(path) as tmp:
-        ds.to_netcdf(tmp, engine="netcdf4", format="NETCDF4", encoding=encoding)
+        cf_dataset(ds).to_netcdf(tmp, engine="netcdf4", format="NETCDF4",
+                                 encoding=netcdf_encoding(ds))
     return path
 
 
@@ -86,7 +90,7 @@ def load_netcdf(path: str | os.PathLike, what: str, error: type[Exception]) -> x
     if not path.is_file():
         raise error(f"{path}: no such {what}")
     try:
-        with xr.open_dataset(path, engine="netcdf4") as ds:
+        with xr.open_dataset(path, engine="netcdf4", decode_times=False) as ds:
             return ds.load()
     except Exception as err:  # noqa: BLE001 - any reader failure means the same to the user
         raise error(f"{path}: not a readable netCDF {what} ({type(err).__name__})") from None

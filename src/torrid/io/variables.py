@@ -19,6 +19,7 @@ from typing import Sequence
 import numpy as np
 import xarray as xr
 
+from torrid.io.cf import CALENDAR, DAYS_COORDINATE, TIME_UNITS
 from torrid.physics.invariants import CORE_DIAGNOSTICS
 from torrid.physics.processes import REGISTRY
 
@@ -46,6 +47,7 @@ class Variable:
     units: str | None
     long_name: str
     standard_name: str | None = None
+    calendar: str | None = None
 
     def attrs(self) -> dict[str, str]:
         """The netCDF attributes of the variable."""
@@ -53,6 +55,8 @@ class Variable:
         out["long_name"] = self.long_name
         if self.standard_name:
             out["standard_name"] = self.standard_name
+        if self.calendar:
+            out["calendar"] = self.calendar
         return out
 
     def dims_over(self, parameters: Sequence[str] = ()) -> tuple[str, ...]:
@@ -94,7 +98,9 @@ class Variable:
 # --- run files --------------------------------------------------------------------------------
 MAP = ("time", "lat", "lon")
 COORDINATES: dict[str, Variable] = {
-    "time": Variable(("time",), "days", "simulated time since the start of the run", "time"),
+    "time": Variable(("time",), TIME_UNITS, "simulated time (day 0, the start of the run, at "
+                     "the nominal epoch; time_days holds the days)", "time", CALENDAR),
+    DAYS_COORDINATE: Variable(("time",), "days", "simulated days since the start of the run"),
     "lat": Variable(("lat",), "degrees_north", "latitude", "latitude"),
     "lon": Variable(("lon",), "degrees_east",
                     "longitude east of the substellar meridian (grid longitude 0)", "longitude"),

@@ -47,6 +47,7 @@ import warnings
 import numpy as np
 import xarray as xr
 
+from torrid.io.cf import time_days
 from torrid.io.config import SECONDS_PER_DAY, ModelConfig
 from torrid.io.observer import (ASTRONOMICAL_UNIT_M, SOLAR_RADIUS_M, ObserverError,
                                 ObserverSettings, read_response)
@@ -210,7 +211,7 @@ def _phase_curve(ds: xr.Dataset, settings: ObserverSettings, source: str) -> xr.
                                                t_night, t_day)
         intensity = band.radiance(temperature)
         disk = quad.integrate(intensity, obs_lat, lon_sub + offset)
-        map_source = (f"final map (day {float(snap['time']):g})" if "time" in snap.coords
+        map_source = (f"final map (day {time_days(ds)[-1]:g})" if "time" in h.dims
                       else "the dataset's map")
     else:
         if param_dims:
@@ -237,7 +238,7 @@ def _last_substellar_longitude(ds: xr.Dataset) -> float:
 def _time_series_disk(ds, settings, orbit: Orbit, quad: DiskQuadrature, band: Band, phases,
                       offset, obs_lat, thickness_scale, end_points, source):
     """Disk integrals at the phases over the last orbit of a time-dependent run."""
-    times_s = np.asarray(ds["time"].values, dtype=float) * SECONDS_PER_DAY
+    times_s = time_days(ds) * SECONDS_PER_DAY
     period = orbit.orbital_period_s
     if times_s.size < 2 or times_s[-1] - times_s[0] < period * (1 - 1e-9):
         raise PhaseCurveError(
@@ -286,7 +287,7 @@ def _distance_scaling(ds, orbit: Orbit, times_s: np.ndarray, exact: bool = False
     config = run_configuration(ds)
     k = config.orbit.distance_exponent if config is not None else 0.0
     if "star_distance_ratio" in ds and not exact:
-        index = np.searchsorted(ds["time"].values * SECONDS_PER_DAY, times_s)
+        index = np.searchsorted(time_days(ds) * SECONDS_PER_DAY, times_s)
         ratio = ds["star_distance_ratio"].values[np.clip(index, 0, ds.sizes["time"] - 1)]
     else:
         ratio = np.asarray(orbit.distance_ratio(times_s), dtype=float)
