@@ -103,3 +103,34 @@ def test_the_placeholder_stands_for_the_swept_dims():
     assert made.dims == ("a", "b", "phase") and made.attrs == row.attrs()
     with pytest.raises(ValueError, match="the table says"):
         row.variable(xr.DataArray(np.zeros((4, 2)), dims=("phase", "a")), ("a",))
+
+
+WINDOWS = """\
+[numerics]
+truncation = 10
+[run]
+days = 16.0
+output_interval_days = 1.0
+stop_at_steady_state = false
+[sweep]
+name = "windows"
+[[sweep.axis]]
+key = "atmosphere.radiative_timescale_days"
+values = [0.1, 3.0]
+"""
+
+
+def test_each_points_averaging_window_is_a_variable(tmp_path):
+    """The final values are means over each point's own window (issue 11): the longer of 3
+    rotation periods (3 days: 9 days) and 5 tau_rad (15 days for tau_rad = 3), so the two
+    points differ, and the table says so per point instead of one attribute."""
+    (tmp_path / "w.toml").write_text(WINDOWS)
+    table = torrid.sweep(tmp_path / "w.toml", workers=1, folder=tmp_path / "w")
+    np.testing.assert_allclose(table.averaging_window_days.values, [9.0, 15.0])
+    np.testing.assert_allclose(table.averaging_end_days.values, [16.0, 16.0])
+    assert table.averaging_window_days.attrs == TABLES["sweep"]["averaging_window_days"].attrs()
+    assert "last 7.5 days" not in table.attrs["final_values"]
+    assert "averaging_window_days" in table.attrs["final_values"]
+    run = xr.open_dataset(tmp_path / "w" / table.run_file.values[1]).attrs
+    assert run["averaging_window_days"] == 15.0
+    assert run["final_values"].startswith("time means over days 1-16")

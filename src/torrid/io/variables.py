@@ -193,6 +193,13 @@ SWEEP_VARIABLES: dict[str, Variable] = {
                                               "ran its days (NaN: no run)"),
     "steady_state_time_days": Variable(_P, "days",
                                        "simulated day at which the steady state was reached"),
+    "averaging_window_days": Variable(_P, "days",
+                                      "length of the trailing window the point's final values "
+                                      "are time means over (0: its last output)"),
+    "averaging_end_days": Variable(_P, "days", "simulated day at which that window ends (the "
+                                               "point's last output)"),
+    "hotspot_offset_reason": Variable(_P, None, "why the point's hotspot offsets are defined "
+                                                "or NaN"),
     "run_status": Variable(_P, None, "status of the point: complete, steady, failed or missing"),
     "run_status_reason": Variable(_P, None, "why the point has its status"),
     "run_file": Variable(_P, None, "the point's run file in the sweep folder (named by its "

@@ -56,18 +56,42 @@ TERMINATOR_TOLERANCE = 1e-9
 #: Relative range below which a field is treated as flat and its hotspot as undefined (NaN).
 FLAT_FIELD_TOLERANCE = 1e-12
 
+#: Longitudinal contrast (``longitudinal_contrast``: the equatorial band's range over longitude
+#: relative to that of the radiative equilibrium) below which both hotspot offsets are
+#: undefined (NaN). Why 0.01: it is the default steady-state tolerance (``run.steady_tolerance``),
+#: the change in the day-night contrast (scale 1) that the run's own steady-state test still
+#: calls "no change". A longitudinal structure smaller than that is, by the run's own
+#: criterion, not distinguishable from a featureless layer, and the longitude of its maximum
+#: is set by residual waves rather than by the forcing (the demo's tau_rad = 10 days points
+#: with weak drag sit at 0.007-0.008 with harmonic offsets of -47 and -83 degrees; the
+#: smallest contrast of its other points is 0.025).
+HOTSPOT_CONTRAST_THRESHOLD = 0.01
+
+#: The diagnostics that are NaN where the hotspot is undefined.
+HOTSPOT_DIAGNOSTICS = ("hotspot_longitude", "hotspot_offset", "hotspot_offset_harmonic")
+#: The angles among the diagnostics (degrees; unwrapped before time means).
+ANGLE_DIAGNOSTICS = HOTSPOT_DIAGNOSTICS
+
 _LIMB = "mean line-of-sight velocity (positive away from a transit observer) of the"
 
 #: Units (CF strings) and long names of every key returned by :func:`planet_diagnostics`
 #: (leading/trailing limbs as for a prograde orbit).
 DIAGNOSTIC_VARIABLES: dict[str, tuple[str, str]] = {
     "hotspot_longitude": (
-        "degrees_east", "longitude of the maximum of the layer thickness on the equator"),
+        "degree", "longitude (east positive) of the maximum of the layer thickness on the "
+                  "equator"),
     "hotspot_offset": (
         "degree", "eastward offset of the equatorial thickness maximum from the substellar point"),
     "hotspot_offset_harmonic": (
         "degree", "eastward offset of the first longitudinal harmonic of the equatorial-band "
         "thickness from the substellar point"),
+    "longitudinal_contrast": (
+        "1", "longitudinal contrast of the equatorial band: range over longitude of its "
+             "cos(lat)-weighted mean thickness (|lat| <= 30 deg) relative to that of the "
+             "radiative equilibrium"),
+    "hotspot_offset_defined": (
+        "1", f"1 where the hotspot offsets are defined (longitudinal contrast >= "
+             f"{HOTSPOT_CONTRAST_THRESHOLD:g}), 0 where they are NaN"),
     "day_night_contrast": (
         "1", "hemisphere-mean day-night contrast: day-minus-night mean thickness relative to "
              "that of the radiative equilibrium"),
@@ -135,6 +159,25 @@ def _is_flat(values: np.ndarray) -> bool:
 
 
 # --- public functions ------------------------------------------------------------------------
+def hotspot_defined(longitudinal_contrast: float) -> bool:
+    """True where the hotspot offsets are defined: the longitudinal contrast (1) is at least
+    :data:`HOTSPOT_CONTRAST_THRESHOLD` (False for NaN)."""
+    return bool(np.isfinite(longitudinal_contrast)
+                and longitudinal_contrast >= HOTSPOT_CONTRAST_THRESHOLD)
+
+
+def hotspot_reason(longitudinal_contrast: float) -> str:
+    """Why the hotspot offsets are defined or not (one line)."""
+    if hotspot_defined(longitudinal_contrast):
+        return (f"defined: longitudinal contrast {longitudinal_contrast:.2g} >= "
+                f"{HOTSPOT_CONTRAST_THRESHOLD:g}")
+    if not np.isfinite(longitudinal_contrast):
+        return "no longitudinal contrast to measure (a flat equilibrium or a flat layer)"
+    return (f"longitudinal contrast {longitudinal_contrast:.2g} below "
+            f"{HOTSPOT_CONTRAST_THRESHOLD:g}: the equatorial band is too flat for a hotspot")
+
+
+
 def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopotential: float,
                        gravity_m_s2: float, rotation_rate_s: float,
                        substellar_longitude_rad: float,
@@ -165,7 +208,14 @@ def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopot
     dict[str, float]
         Keys and units as in :data:`DIAGNOSTIC_VARIABLES`:
 
-        ``hotspot_longitude`` (degrees_east, [-180, 180))
+        ``longitudinal_contrast`` (1)
+            C = (max - min over longitude of b) / (the same of b_eq), b the cos(lat)-weighted
+            mean of h over the model-grid rings with |lat| <= ``EQUATORIAL_BAND_HALF_WIDTH_DEG``
+            and b_eq that of h_eq. NaN if b_eq is flat.
+        ``hotspot_offset_defined`` (1)
+            1.0 if C >= :data:`HOTSPOT_CONTRAST_THRESHOLD`, else 0.0; the three hotspot
+            diagnostics below are NaN where it is 0 (:func:`hotspot_reason` says why).
+        ``hotspot_longitude`` (degree, east positive, [-180, 180))
             Longitude of the maximum of h on the equator. h is synthesised exactly on an
             equatorial ring of ``HOTSPOT_RING_OVERSAMPLING * nlon`` points and the maximum refined
             by the parabola through the largest sample and its neighbours (error about
@@ -236,11 +286,22 @@ def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopot
 
     out: dict[str, float] = {}
 
+    # the equatorial band's longitudinal contrast, which decides whether a hotspot is defined
+    band = np.abs(grid.latitude) <= np.deg2rad(EQUATORIAL_BAND_HALF_WIDTH_DEG)
+    cos_band = np.cos(grid.latitude[band])
+    band_profile = cos_band @ h[band] / cos_band.sum()
+    band_range_eq = float(np.ptp(cos_band @ h_eq[band] / cos_band.sum()))
+    flat_eq = band_range_eq <= FLAT_FIELD_TOLERANCE * float(np.max(np.abs(h_eq)))
+    contrast = np.nan if flat_eq else float(np.ptp(band_profile)) / band_range_eq
+    out["longitudinal_contrast"] = contrast
+    defined = hotspot_defined(contrast)
+    out["hotspot_offset_defined"] = float(defined)
+
     # hotspot: exact equatorial ring, parabolic refinement
     nring = HOTSPOT_RING_OVERSAMPLING * grid.nlon
     h_equator = _ring_synthesis(thickness_lm[None, :], lmax, np.array([np.pi / 2]), nring,
                                 0.0, spin=0)[0, 0]
-    if _is_flat(h_equator):
+    if not defined or _is_flat(h_equator):
         hotspot = np.nan
     else:
         k, _ = _parabolic_peak(h_equator)
@@ -250,11 +311,8 @@ def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopot
                              else np.nan)
 
     # harmonic offset of the equatorial band
-    band = np.abs(grid.latitude) <= np.deg2rad(EQUATORIAL_BAND_HALF_WIDTH_DEG)
-    cos_band = np.cos(grid.latitude[band])
-    band_profile = cos_band @ h[band] / cos_band.sum()
     c1 = np.sum(band_profile * np.exp(-1j * grid.longitude))
-    if abs(c1) <= FLAT_FIELD_TOLERANCE * grid.nlon * np.max(np.abs(band_profile)):
+    if not defined or abs(c1) <= FLAT_FIELD_TOLERANCE * grid.nlon * np.max(np.abs(band_profile)):
         out["hotspot_offset_harmonic"] = np.nan
     else:
         out["hotspot_offset_harmonic"] = float(wrap_degrees(-np.rad2deg(np.angle(c1))

@@ -8,6 +8,11 @@ non-dimension coordinates along their group's dimension. Variables, from each po
 * every ``final_<name>`` diagnostic as ``<name>``, NaN for failed and missing points (a failed
   run file keeps its last good state, but that is not a result);
 * ``steady_state_reached`` (1, 0; NaN when there is no run), ``steady_state_time_days``;
+* ``averaging_window_days`` and ``averaging_end_days``: each point's own averaging window
+  of its final values (they differ between points: the window is the longer of 3 rotation
+  periods and 5 tau_rad);
+* ``hotspot_offset_reason``: why the point's hotspot offsets are defined or NaN (the flag
+  ``hotspot_offset_defined`` is among the final values);
 * ``run_status`` (complete, steady, failed, missing), ``run_status_reason`` and ``run_file``
   (the point's file name in the folder, also for points still missing);
 * ``nightside_thickness_m``, ``substellar_thickness_m`` (the equilibrium's smallest and largest
@@ -42,6 +47,8 @@ MAP_VARIABLES = SWEEP_MAPS
 #: Inputs of each point's forcing that become variables over the sweep (the thickness ->
 #: temperature scaling of a phase curve), unless swept (then the coordinate holds them).
 FORCING = ("nightside_thickness_m", "substellar_thickness_m", "forcing_contrast")
+#: Numbers of each finished point's run file that become variables over the sweep.
+RUN_NUMBERS = ("steady_state_time_days", "averaging_window_days", "averaging_end_days")
 
 
 def table_path(folder: str | os.PathLike, name: str) -> Path:
@@ -107,6 +114,8 @@ def collect_sweep(folder: str | os.PathLike, maps: bool = False) -> xr.Dataset:
               for dim in manifest["dimensions"] for axis in dim["axes"]}
     for name in [n for n in FORCING if n in coords]:  # swept: the coordinate holds it
         del data[name]
+    if not any("hotspot_offset_reason" in r.attrs for r in finished):
+        del data["hotspot_offset_reason"]  # standard cases, or files without the rule
     if maps:
         maps_data = _point_maps(folder, results, dims, shape)
         if maps_data is not None:
@@ -138,9 +147,9 @@ def _forcing_inputs(base: dict, point: dict) -> dict:
 def _point_variables(results: dict, base: dict, dims: list, shape: tuple, finals: list) -> dict:
     """The per-point variables (everything but the maps) of the table."""
     numbers = {name: np.full(shape, np.nan) for name in
-               [*finals, "steady_state_reached", "steady_state_time_days", *FORCING]}
+               [*finals, "steady_state_reached", *RUN_NUMBERS, *FORCING]}
     strings = {name: np.full(shape, "", dtype=object) for name in
-               ("run_status", "run_status_reason", "run_file")}
+               ("run_status", "run_status_reason", "run_file", "hotspot_offset_reason")}
     for index, (point, result) in results.items():
         for name, value in _forcing_inputs(base, point).items():
             numbers[name][index] = value
@@ -150,15 +159,18 @@ def _point_variables(results: dict, base: dict, dims: list, shape: tuple, finals
         if "steady_state_reached" in result.attrs:
             numbers["steady_state_reached"][index] = float(result.attrs["steady_state_reached"])
         if result.status not in FINISHED:
+            strings["hotspot_offset_reason"][index] = f"no result ({result.status} point)"
             continue
-        numbers["steady_state_time_days"][index] = float(
-            result.attrs.get("steady_state_time_days", np.nan))
+        strings["hotspot_offset_reason"][index] = str(result.attrs.get("hotspot_offset_reason",
+                                                                       ""))
+        for name in RUN_NUMBERS:
+            numbers[name][index] = float(result.attrs.get(name, np.nan))
         for name in finals:
             numbers[name][index] = float(result.attrs.get(f"final_{name}", np.nan))
     data = {name: final_value_row(name).variable(numbers[name], dims) for name in finals}
     columns = {**numbers, **strings}
-    for name in ("steady_state_reached", "steady_state_time_days", "run_status",
-                 "run_status_reason", "run_file", *FORCING):  # FORCING: for phase curves
+    for name in ("steady_state_reached", *RUN_NUMBERS, "run_status", "run_status_reason",
+                 "run_file", "hotspot_offset_reason", *FORCING):  # FORCING: for phase curves
         data[name] = SWEEP_VARIABLES[name].variable(columns[name], dims)
     return data
 
@@ -190,8 +202,6 @@ def _point_maps(folder: Path, results: dict, dims: list, shape: tuple):
 
 
 def _table_attrs(manifest: dict, status: np.ndarray, finished: list) -> dict:
-    described = next((str(r.attrs["final_values"]) for r in finished if "final_values" in r.attrs),
-                     "the last output of each run")
     rates = {float(r.attrs["rotation_rate_s"]) for r in finished if "rotation_rate_s" in r.attrs}
     return {
         "Conventions": "CF-1.10",
@@ -207,11 +217,13 @@ def _table_attrs(manifest: dict, status: np.ndarray, finished: list) -> dict:
         **{f"points_{s}": int((status == s).sum())
            for s in ("complete", "steady", "failed", "missing")},
         **({"rotation_rate_s": rates.pop()} if len(rates) == 1 else {}),
-        "final_values": described,
+        "final_values": "each point's time means over its own trailing steady-state window "
+                        "(averaging_window_days long, ending at averaging_end_days; 0 days: "
+                        "its last output)",
         "comment": "one point per combination of the swept values; the diagnostics are each "
-                   "run's final_<name> attributes (final_values says what they are; NaN for "
-                   "failed and missing points), the maps its last output; run_file names the "
-                   "point's run file in the sweep folder",
+                   "run's final_<name> attributes (NaN for failed and missing points, and for "
+                   "hotspot offsets where hotspot_offset_defined is 0), the maps its last "
+                   "output; run_file names the point's run file in the sweep folder",
     }
 
 

@@ -86,14 +86,29 @@ def diagnostic_metadata(model: Model) -> dict[str, Diagnostic]:
 
 def final_value(times_days, values, window_days: float, angle: bool = False) -> float:
     """Time mean of a diagnostic over the trailing window (its last value if the run is
-    shorter than the window). Angles (degrees) are unwrapped first."""
+    shorter than the window). Angles (degrees) are unwrapped first. Undefined (NaN) samples
+    are left out of the mean; with fewer than two defined samples in the window it is NaN."""
     values = unwrap_degrees(values) if angle else np.asarray(values, float)
-    end = times_days[-1]
-    if end - times_days[0] < window_days or not np.isfinite(values[-1]):
+    times = np.asarray(times_days, float)
+    end = times[-1]
+    if end - times[0] < window_days:
         mean = values[-1]
     else:
-        mean = window_means(times_days, values, end - window_days, end)
+        keep = np.isfinite(values)
+        if keep.all():
+            mean = window_means(times, values, end - window_days, end)
+        elif np.count_nonzero(keep & (times >= end - window_days - 1e-9)) >= 2:
+            mean = window_means(times[keep], values[keep], end - window_days, end)
+        else:
+            mean = float("nan")
     return float(wrap_degrees(mean)) if angle else float(mean)
+
+
+def averaging_window(times_days, window_days: float) -> tuple[float, float]:
+    """(length, end) in days of the window the final values are means over: the trailing
+    steady-state window, or length 0 (the last output) if the run is shorter than it."""
+    start, end = float(times_days[0]), float(times_days[-1])
+    return (float(window_days) if end - start >= window_days else 0.0), end
 
 
 def planet_attrs(model: Model, times_days: list, series: dict, criterion: SteadyCriterion,
@@ -109,12 +124,20 @@ def planet_attrs(model: Model, times_days: list, series: dict, criterion: Steady
                                         + ("" if model.orbit.is_steady
                                            else ", whole orbits (orbit-to-orbit repeat)")),
     }
-    out["final_values"] = (f"time means over the last {window:g} days (the steady-state "
-                           "window; whole orbits on eccentric orbits), or the last output if "
-                           "the run is shorter")
+    length, end = averaging_window(times_days, window)
+    out["averaging_window_days"], out["averaging_end_days"] = length, end
+    out["final_values"] = (f"time means over days {end - length:g}-{end:g} (the last "
+                           f"{length:g} days: the steady-state window, whole orbits on "
+                           "eccentric orbits)" if length else
+                           f"the last output (day {end:g}): the run is shorter than the "
+                           f"steady-state window of {window:g} days")
+    finals = {}
     for name, meta in diagnostic_metadata(model).items():
         if meta.final and name in series:
-            out[f"final_{name}"] = final_value(times_days, series[name], window, angle=meta.angle)
+            finals[name] = final_value(times_days, series[name], window, angle=meta.angle)
+    out.update({f"final_{name}": value for name, value in finals.items()})
+    for process in model.processes:
+        out.update(process.final_attrs(finals))
     return out
 
 

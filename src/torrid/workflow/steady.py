@@ -13,7 +13,8 @@ every output time t, with a trailing window of length W:
 
 Monitored diagnostics and scales: kinetic energy (scale: its recent mean), day-night contrast
 (scale 1), equatorial zonal-mean wind and maximum wind speed (scale: the recent mean maximum
-wind speed), and the first-harmonic hotspot offset (scale: 360 degrees).
+wind speed), and the first-harmonic hotspot offset (scale: 360 degrees; left out while it is undefined in
+the last two windows, i.e. where the layer is too flat for a hotspot).
 """
 
 from __future__ import annotations
@@ -69,9 +70,12 @@ def is_steady(times_days: list[float], series: dict[str, list[float]],
     if now < 2 * w - 1e-9 or len(t) < 5:
         return False
     means = {}
+    recent = t >= now - 2 * w - 1e-9
     for name in MONITORED:
         values = np.asarray(series[name], float)
-        if name.startswith("hotspot"):  # undefined (NaN) while the layer is flat
+        if name.startswith("hotspot"):  # undefined (NaN) while the layer is too flat
+            if not np.isfinite(values[recent]).all():
+                continue  # not monitored then: the contrast is, and says the layer is flat
             values = unwrap_degrees(values)
         means[name] = (window_means(t, values, now - 2 * w, now - w),
                        window_means(t, values, now - w, now))

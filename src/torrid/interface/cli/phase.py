@@ -3,6 +3,7 @@
 from __future__ import annotations
 
 import argparse
+import math
 import sys
 from pathlib import Path
 
@@ -59,6 +60,16 @@ def handle(args: argparse.Namespace) -> int:
     return 0
 
 
+def _map_hotspot(pc) -> str:
+    """Both hotspot measures of the map (its final values), or "undefined" where the map is
+    too flat for a hotspot (NaN in the run)."""
+    harmonic, maximum = float(pc.map_hotspot_offset_harmonic), float(pc.map_hotspot_offset)
+    if not (math.isfinite(harmonic) or math.isfinite(maximum)):
+        return "map hotspot undefined (the map is too flat: see the run's hotspot_offset_reason)"
+    return (f"map hotspot {harmonic:+.1f} deg (first harmonic), {maximum:+.1f} deg "
+            "(equatorial maximum)")
+
+
 def summary_line(pc) -> str:
     """One line of the headline numbers of a (single) phase curve: the curve's peak and its
     first harmonic beside both hotspot measures of the map (its equatorial maximum and the
@@ -70,8 +81,6 @@ def summary_line(pc) -> str:
     return (f"eclipse depth {float(pc.eclipse_depth):.1f} ppm, nightside "
             f"{float(pc.nightside_flux):.1f} ppm, amplitude {float(pc.amplitude):.1f} ppm; "
             f"curve peak at phase {float(pc.phase_of_maximum):.3f} (offset {peak:+.1f} {unit}, "
-            f"first harmonic {harmonic:+.1f} {unit}); map hotspot "
-            f"{float(pc.map_hotspot_offset_harmonic):+.1f} deg (first harmonic), "
-            f"{float(pc.map_hotspot_offset):+.1f} deg (equatorial maximum); {pc.attrs['band']}, "
+            f"first harmonic {harmonic:+.1f} {unit}); {_map_hotspot(pc)}; {pc.attrs['band']}, "
             f"T_night {pc.attrs['night_temperature_K']:.0f} K, T_day "
             f"{pc.attrs['day_temperature_K']:.0f} K")

@@ -7,6 +7,7 @@ import sys
 from pathlib import Path
 
 from torrid.api import run
+from torrid.interface.headline import hotspot_phrase
 from torrid.io.config import ConfigError, ModelConfig
 from torrid.io.settings import setting
 from torrid.io.tomlfile import load_config
@@ -141,8 +142,7 @@ def planet_line(ds) -> str:
     a = ds.attrs
     steady = (f"steady at day {a['steady_state_time_days']:g}" if a["steady_state_reached"]
               else "not steady by the end")
-    return (f"hotspot {a['final_hotspot_offset']:+.1f} deg (harmonic "
-            f"{a['final_hotspot_offset_harmonic']:+.1f}), day-night contrast "
+    return (f"{hotspot_phrase(a)}, day-night contrast "
             f"{a['final_day_night_contrast']:.2f}, equatorial wind "
             f"{a['final_equatorial_zonal_wind'] / 1e3:+.2f} km/s, max wind "
             f"{a['final_max_wind_speed'] / 1e3:.2f} km/s; {steady}")

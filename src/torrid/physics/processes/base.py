@@ -167,6 +167,12 @@ class Process:
         """Global attributes of the run file that describe the process."""
         return {}
 
+    def final_attrs(self, finals: Mapping[str, float]) -> dict[str, Any]:
+        """Run-file attributes that follow from the final values (name -> the time mean over
+        the steady-state window): new attributes, or ``final_<name>`` values replaced (e.g.
+        set to NaN where a diagnostic is undefined)."""
+        return {}
+
 
 def provides(process: Process, method: str) -> bool:
     """True if ``process`` overrides ``method`` of :class:`Process` (has that part)."""

@@ -26,7 +26,9 @@ import math
 import numpy as np
 
 from torrid.physics.diagnostic_metadata import Diagnostic
-from torrid.physics.diagnostics import DIAGNOSTIC_VARIABLES, planet_diagnostics
+from torrid.physics.diagnostics import (ANGLE_DIAGNOSTICS, DIAGNOSTIC_VARIABLES,
+                                        HOTSPOT_DIAGNOSTICS, hotspot_defined, hotspot_reason,
+                                        planet_diagnostics)
 from torrid.physics.processes.base import ImplicitRates, Process
 from torrid.physics.state import GEOPOTENTIAL
 from torrid.physics.units import SECONDS_PER_DAY
@@ -89,10 +91,10 @@ class NewtonianRelaxation(Process):
                 "orbit.distance_exponent")
     reference = "Showman & Polvani (2011); Perez-Becker & Showman (2013)"
     diagnostic_variables = {
-        **{name: Diagnostic(units, long_name, angle=name.startswith("hotspot"))
+        **{name: Diagnostic(units, long_name, angle=name in ANGLE_DIAGNOSTICS)
            for name, (units, long_name) in DIAGNOSTIC_VARIABLES.items()},
-        "substellar_longitude": Diagnostic("degrees_east", "longitude of the substellar point",
-                                           final=False),
+        "substellar_longitude": Diagnostic("degree", "longitude (east positive) of the "
+                                                     "substellar point", final=False),
         "star_distance_ratio": Diagnostic("1", "star-planet distance over the semi-major axis",
                                           final=False),
         "mean_mass_source": Diagnostic(
@@ -182,6 +184,18 @@ class NewtonianRelaxation(Process):
         if self.rate:
             self.equilibrium(time_s)
             out[GEOPOTENTIAL] += self._source
+
+    def final_attrs(self, finals) -> dict:
+        """The hotspot rule on the final values: defined where the final (window-mean)
+        longitudinal contrast reaches the threshold, else NaN offsets, flag 0 and the reason
+        (``hotspot_offset_reason``)."""
+        contrast = finals.get("longitudinal_contrast", math.nan)
+        defined = hotspot_defined(contrast)
+        out = {"final_hotspot_offset_defined": float(defined),
+               "hotspot_offset_reason": hotspot_reason(contrast)}
+        if not defined:
+            out.update({f"final_{name}": math.nan for name in HOTSPOT_DIAGNOSTICS})
+        return out
 
     def diagnostics(self, snapshot) -> dict[str, float]:
         time_s = snapshot.time_s
