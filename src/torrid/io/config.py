@@ -171,6 +171,10 @@ class ModelConfig:
         if not isinstance(data, dict):
             raise ConfigError(f"configuration must be a table of sections, got {type(data).__name__}")
         for name, value in data.items():
+            if name == "sweep":
+                raise ConfigError("[sweep] is the section of a sweep file: run it with "
+                                  "torrid sweep FILE.toml (torrid run takes a planet "
+                                  "configuration)")
             if name not in SECTION_CLASSES:
                 raise ConfigError(unknown_message(name, list(SECTION_CLASSES), "section"))
             if not isinstance(value, dict):

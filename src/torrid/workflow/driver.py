@@ -18,6 +18,7 @@ from torrid.workflow.health import HealthProblem, check_step
 from torrid.workflow.output import (RunSummary, append_snapshot, output_coordinates,
                                     planet_attrs, relative_change, run_attrs, snapshot,
                                     to_output_grid)
+from torrid.workflow.output import budget_note
 from torrid.workflow.restart import RestartStore
 from torrid.workflow.setup import Model, build_model
 from torrid.workflow.steady import SteadyCriterion, is_steady
@@ -190,7 +191,7 @@ def integrate(model: Model, progress: bool = True, label: str = "",
         steady_day = run.times_days[-1] if status == "steady" else None
         attrs.update(planet_attrs(model, run.times_days, run.series, criterion,
                                   config.run.stop_at_steady_state, steady_day))
-    attrs["summary"] = summary.line(model.label)
+    attrs["summary"] = summary.line(model.label, budget_note(model))
     ds = build_dataset(run.times_days, lat, lon, run.series, static, attrs)
     if problem is not None:
         raise RunFailedError(problem.message(), ds)

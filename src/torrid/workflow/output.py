@@ -32,12 +32,27 @@ class RunSummary:
         """Simulated days per wall-clock second."""
         return self.simulated_days / self.wall_seconds if self.wall_seconds > 0 else math.inf
 
-    def line(self, label: str) -> str:
-        """One-line human summary."""
+    def line(self, label: str, budget: str = "relative") -> str:
+        """One-line human summary; ``budget`` says what the mass and energy changes include
+        (:func:`budget_note`)."""
         return (f"{label}: {self.simulated_days:g} days in {self.steps} steps, "
                 f"{self.wall_seconds:.1f} s ({self.days_per_second:.3g} simulated days/s); "
-                f"mass change {self.mass_change_relative:.2e}, "
-                f"energy change {self.energy_change_relative:.2e} (relative)")
+                f"mass change {self.mass_change_relative:+.2e}, "
+                f"energy change {self.energy_change_relative:+.2e} ({budget})")
+
+
+def budget_note(model: Model) -> str:
+    """What the relative mass and energy changes of a run include, in a few words: a forced
+    run gains and loses mass through the relaxation (the thickness source), so its changes
+    are the forcing's, not a conservation error."""
+    names = [p.name.replace("_", " ") for p in model.processes]
+    if model.is_planet:
+        return ("relative to day 0, including what the forcing adds: the relaxation adds "
+                "and removes mass, it and the damping change the energy")
+    if names:
+        return (f"relative to day 0; no forcing, so the mass is conserved to round-off; the "
+                f"energy includes what {' and '.join(names)} removes")
+    return "relative to day 0; no forcing or damping: both conserved to round-off"
 
 
 def to_output_grid(field: np.ndarray) -> np.ndarray:

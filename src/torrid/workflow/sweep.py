@@ -14,7 +14,8 @@
 
 A point that blows up is a result (status failed with its reason), not a reason to stop.
 An unexpected error in a point (a bug, a full disk) is reported at the end, writes nothing and
-is retried by the next run. One sweep at a time may use a folder (a lock file).
+is retried by the next run. One sweep at a time may use a folder (a lock file, removed at the
+end).
 """
 
 from __future__ import annotations
@@ -83,22 +84,36 @@ def default_workers() -> int:
 
 @contextlib.contextmanager
 def _folder_lock(folder: Path):
-    """Hold ``<folder>/.sweep.lock`` (released by the OS even on kill -9)."""
+    """Hold ``<folder>/.sweep.lock`` (released by the OS even on kill -9); the file is removed
+    when the sweep ends. A lock taken on a file that another sweep removed meanwhile is
+    retried on the new file, so two sweeps never both hold one."""
     try:
         import fcntl
     except ImportError:  # no POSIX locks: no protection against two sweeps
         yield
         return
-    with open(folder / LOCK_NAME, "a") as handle:
+    path = folder / LOCK_NAME
+    while True:
+        handle = open(path, "a")
         try:
             fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
         except OSError:
+            handle.close()
             raise SweepError(f"{folder}: another torrid sweep is running in this folder "
                              "(wait for it, or stop it first)") from None
         try:
-            yield
-        finally:
-            fcntl.flock(handle, fcntl.LOCK_UN)
+            same = os.fstat(handle.fileno()).st_ino == os.stat(path).st_ino
+        except FileNotFoundError:
+            same = False
+        if same:
+            break
+        handle.close()  # removed by a sweep that just ended: lock the current file
+    try:
+        yield
+    finally:
+        path.unlink(missing_ok=True)  # while still holding it (see above)
+        fcntl.flock(handle, fcntl.LOCK_UN)
+        handle.close()
 
 
 def _remove_stale_temporaries(folder: Path) -> None:
