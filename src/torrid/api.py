@@ -20,6 +20,7 @@ from torrid.physics.cases import CASES
 from torrid.io.observer import ObserverSettings
 from torrid.workflow.phase import phase_curve
 from torrid.workflow.driver import run_config, run_to_file
+from torrid.workflow.sanity import warn_implausible
 
 __all__ = ["build_case_config", "run", "load_config", "ModelConfig", "phase_curve",
            "ObserverSettings", "sweep", "fit"]
@@ -79,9 +80,13 @@ def run(config: ModelConfig, output: str | os.PathLike | None = None, *,
     fails its health checks raises :class:`torrid.workflow.driver.RunFailedError` after
     writing ``output`` with ``run_status = "failed"`` and the last good state.
 
+    A timescale longer than the run or than 1000 days (a likely unit slip) is warned about
+    (:mod:`torrid.workflow.sanity`); the run goes ahead.
+
     With ``output``, restart data are kept beside it (``.NAME.nc.restart/``, see
     :mod:`torrid.workflow.restart`); ``resume=True`` continues an interrupted run from them.
     """
+    warn_implausible(config)
     if output is not None:
         return run_to_file(config, output, overwrite=overwrite, progress=progress,
                            resume=resume)

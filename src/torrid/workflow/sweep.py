@@ -34,6 +34,7 @@ from torrid.io.pointfile import FAILED, FINISHED, canonical_json, read_point, wr
 from torrid.io.sweepspec import SweepPoint, SweepSpec
 from torrid.io.sweepmanifest import manifest_data, write_manifest
 from torrid.workflow import collect
+from torrid.workflow.sanity import warn_implausible_points
 from torrid.workflow.sweep_task import THREAD_VARIABLES, init_worker, run_point
 
 LOCK_NAME = ".sweep.lock"
@@ -186,6 +187,7 @@ def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | N
                 write_failure_record(folder / point.file_name, point.data,
                                      f"invalid configuration: {point.error}", overwrite=True)
         plan = plan_sweep(spec, folder, retry_failed, points)
+        warn_implausible_points([p.config for p in plan.to_run], stacklevel=3)
         outcome.skipped = len(plan.results)
         if plan.to_run:
             outcome.errors = _execute(plan, folder, workers, scheduler, progress)

@@ -10,6 +10,7 @@ from __future__ import annotations
 
 import argparse
 import sys
+import warnings
 
 from torrid.interface.cli import collect as collect_cmd
 from torrid.interface.cli import demo as demo_cmd
@@ -19,7 +20,7 @@ from torrid.interface.cli import plot as plot_cmd
 from torrid.interface.cli import run as run_cmd
 from torrid.interface.cli import settings as settings_cmd
 from torrid.interface.cli import sweep as sweep_cmd
-from torrid.meta import __version__
+from torrid.meta import TorridWarning, __version__
 from torrid.workflow.driver import RunFailedError
 
 SUBCOMMANDS = {"run": run_cmd, "plot": plot_cmd, "phase": phase_cmd, "sweep": sweep_cmd,
@@ -45,10 +46,26 @@ def build_parser() -> argparse.ArgumentParser:
     return parser
 
 
+def _show_warning(message, category, filename, lineno, file=None, line=None,
+                  _default=warnings.showwarning):
+    """torrid's own warnings as one line, ``torrid: warning: ...``; others as Python shows them."""
+    if issubclass(category, TorridWarning):
+        print(f"torrid: warning: {message}", file=sys.stderr if file is None else file)
+    else:
+        _default(message, category, filename, lineno, file, line)
+
+
 def main(argv: list[str] | None = None) -> int:
     """Entry point of the ``torrid`` console script; returns the exit status."""
     parser = build_parser()
     args = parser.parse_args(argv)
+    with warnings.catch_warnings():
+        warnings.showwarning = _show_warning
+        return _dispatch(args)
+
+
+def _dispatch(args: argparse.Namespace) -> int:
+    """Run the subcommand; user errors and failed runs become one line and an exit status."""
     try:
         return int(args.handler(args) or 0)
     except USER_ERRORS as err:
