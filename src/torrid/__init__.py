@@ -10,7 +10,12 @@ from torrid.interface import accessor as _accessor  # noqa: F401  (registers ds.
 
 _API = ("build_case_config", "run", "ModelConfig", "load_config", "phase_curve", "ObserverSettings",
         "sweep", "fit")
-__all__ = ["__version__", "TorridWarning", *_API]
+#: The figures: each function returns its matplotlib figure (or writes a PNG when given a path).
+_PLOTS = {"plot_map": "plots", "plot_planet_map": "plots", "plot_spinup": "plots",
+          "plot_sweep_diagnostics": "sweep_plots", "plot_sweep_maps": "sweep_plots",
+          "plot_phase_curve": "phase_plot", "plot_phase_curve_family": "phase_plot",
+          "plot_fit": "fit_plot"}
+__all__ = ["__version__", "TorridWarning", *_API, *_PLOTS]
 
 
 def __getattr__(name):
@@ -19,4 +24,8 @@ def __getattr__(name):
         from torrid import api
 
         return getattr(api, name)
+    if name in _PLOTS:
+        import importlib
+
+        return getattr(importlib.import_module(f"torrid.interface.{_PLOTS[name]}"), name)
     raise AttributeError(f"module 'torrid' has no attribute {name!r}")

@@ -7,10 +7,42 @@ import os
 import numpy as np
 import xarray as xr
 
+from torrid.interface.axes_style import coordinate_label, figure_style, rounded, value_label
 from torrid.interface.plots import plt, save_figure
 
 #: at most this many curves of a sweep are drawn in one plot
 MAX_CURVES = 12
+#: tick steps (K) tried for the brightness-temperature axis, the first giving 3-8 ticks
+TEMPERATURE_STEPS = (1, 2, 5, 10, 20, 25, 50, 100, 200, 250, 500, 1000)
+
+
+def brightness_temperature_axis(ax, flux: np.ndarray, temperature: np.ndarray):
+    """A right-hand axis of band brightness temperature (K) beside a flux-ratio axis.
+
+    The flux ratio of a disk is (R_p/R_s)^2 B_band(T_b) / B_band(T_star), monotonic in T_b,
+    so the axis puts round temperatures at the flux ratios the curve's own samples give them
+    (linear interpolation between samples, within the range the curve covers).
+    """
+    flux = np.asarray(flux, float).ravel()
+    temperature = np.asarray(temperature, float).ravel()
+    keep = np.isfinite(flux) & np.isfinite(temperature)
+    flux, temperature = flux[keep], temperature[keep]
+    right = ax.twinx()
+    right.set_ylim(ax.get_ylim())
+    right.set_ylabel("band brightness temperature (K)")
+    if flux.size < 2 or np.ptp(temperature) <= 0:
+        right.set_yticks([])
+        return right
+    order = np.argsort(temperature)
+    temperature, flux = temperature[order], flux[order]
+    low, high = temperature[0], temperature[-1]
+    step = next((s for s in TEMPERATURE_STEPS if 3 <= (high - low) / s <= 8),
+                TEMPERATURE_STEPS[-1] if high - low > 8 else TEMPERATURE_STEPS[0])
+    ticks = np.arange(np.ceil(low / step) * step, high + 1e-9, step)
+    if ticks.size == 0:
+        ticks = np.array([0.5 * (low + high)])
+    right.set_yticks(np.interp(ticks, temperature, flux), [rounded(t, 4) for t in ticks])
+    return right
 
 
 def plot_phase_curve(pc: xr.Dataset, path: str | os.PathLike | None = None,
@@ -33,9 +65,18 @@ def plot_phase_curve(pc: xr.Dataset, path: str | os.PathLike | None = None,
                                                    range(min(MAX_CURVES, stacked.sizes["point"]))]
     phase = np.append(pc["phase"].values, 1.0)
     ecl = float(pc["eclipse_phase"])
-    fig, ax = plt.subplots(figsize=(8, 4.5), constrained_layout=True)
+    with figure_style():
+        fig = _draw_phase_curve(pc, flux, curves, phase, ecl)
+    if path is None:
+        return fig
+    return save_figure(fig, path, overwrite)
+
+
+def _draw_phase_curve(pc, flux, curves, phase, ecl):
+    fig, ax = plt.subplots(figsize=(8.5, 4.6), layout="constrained")
     for curve in curves:
-        ax.plot(phase, np.append(curve.values, curve.values[0]), lw=1.6)
+        ax.plot(phase, np.append(curve.values, curve.values[0]), lw=1.8,
+                label=_curve_label(pc, curve) if len(curves) > 1 else None)
     for x, label in ((0.0, "transit"), (ecl, "eclipse"), (1.0, None)):
         ax.axvline(x, color="grey", ls="--", lw=0.9)
         if label:
@@ -52,50 +93,70 @@ def plot_phase_curve(pc: xr.Dataset, path: str | os.PathLike | None = None,
             where = (ecl - pc.attrs.get("rotation_sense", 1) * offset / 360.0) % 1.0
             ax.axvline(where, color="tab:orange", lw=1.2,
                        label=f"map hotspot offset ({offset:+.1f} deg)")
+        else:
+            ax.plot([], [], ls="none", label="map hotspot undefined (the map is too flat)")
+    if ax.get_legend_handles_labels()[0]:
         ax.legend(loc="best", fontsize=8)
     ax.set_xlim(0, 1)
     ax.set_xlabel("orbital phase (0: mid-transit)")
     ax.set_ylabel("planet-to-star flux ratio (ppm)")
     ax.set_title(f"thermal phase curve, {pc.attrs.get('band', '')}, inclination "
                  f"{pc.attrs.get('inclination_deg', 90):g} deg", fontsize=10)
-    if path is None:
-        return fig
-    return save_figure(fig, path, overwrite)
+    if "brightness_temperature" in pc:
+        brightness_temperature_axis(ax, pc["flux_ratio"].values,
+                                    pc["brightness_temperature"].values)
+    return fig
+
+
+def _curve_label(pc, curve) -> str:
+    """"radiative timescale 0.46 days, drag timescale 10 days" for one curve of a sweep."""
+    parts = []
+    for name in curve.coords:
+        if name in pc.coords and name in pc["flux_ratio"].dims and name != "phase":
+            parts.append(value_label(pc[name], curve[name].values))
+    return ", ".join(parts)
 
 
 def plot_phase_curve_family(pc: xr.Dataset, path: str | os.PathLike | None = None,
                             overwrite: bool = False):
     """Phase curves of a sweep table: one panel per value of the second swept axis, one line
-    per value of the first (coloured), transit and eclipse marked."""
-    import numpy as np
+    per value of the first (coloured), eclipse marked, a brightness-temperature axis on the
+    right of the last panel (the flux-ratio axis is shared).
 
-    from torrid.interface.plots import plt, save_figure
-
+    Returns the figure, or writes the PNG ``path``.
+    """
     flux = pc["flux_ratio"]
     dims = [d for d in flux.dims if d != "phase"]
     if len(dims) == 1:
         flux = flux.expand_dims(_panel=[0])
         dims = [dims[0], "_panel"]
     first, second = dims[:2]
-    rest = {d: 0 for d in dims[2:]}
+    rest = {d: flux.sizes[d] // 2 for d in dims[2:]}
     flux = flux.isel(rest)
     n = flux.sizes[second]
-    fig, axes = plt.subplots(1, n, figsize=(3.2 * n, 3.4), sharey=True, squeeze=False,
-                             constrained_layout=True)
-    colours = plt.cm.viridis(np.linspace(0, 0.9, flux.sizes[first]))
-    for k, ax in enumerate(axes[0]):
-        for i, colour in enumerate(colours):
-            curve = flux.isel({first: i, second: k})
-            ax.plot(pc["phase"], curve, color=colour,
-                    label=f"{float(flux[first][i]):g}" if first in flux.coords else str(i))
-        ax.axvline(0.5, color="grey", ls="--", lw=0.8)
-        title = (f"{second.replace('_', ' ')} = {float(flux[second][k]):g}"
-                 if second in flux.coords and second != "_panel" else "")
-        ax.set_title(title, fontsize=9)
-        ax.set_xlabel("orbital phase")
-    axes[0][0].set_ylabel("flux ratio (ppm)")
-    axes[0][-1].legend(title=first.replace("_", " "), fontsize=7, title_fontsize=7)
-    fig.suptitle(f"phase curves over the sweep ({pc.attrs.get('band', '')})", fontsize=10)
+    with figure_style():
+        fig, axes = plt.subplots(1, n, figsize=(3.4 * n + 1.2, 3.9), sharey=True,
+                                 squeeze=False, layout="constrained")
+        colours = plt.cm.viridis(np.linspace(0, 0.9, flux.sizes[first]))
+        for k, ax in enumerate(axes[0]):
+            for i, colour in enumerate(colours):
+                curve = flux.isel({first: i, second: k})
+                label = (rounded(flux[first].values[i]) if first in flux.coords else str(i))
+                ax.plot(pc["phase"], curve, color=colour, label=label)
+            ax.axvline(0.5, color="grey", ls="--", lw=0.8)
+            if second in flux.coords and second != "_panel":
+                ax.set_title(value_label(pc[second], flux[second].values[k]), fontsize=10)
+            ax.set_xlabel("orbital phase")
+            ax.set_xlim(0, 1)
+        axes[0][0].set_ylabel("planet-to-star flux ratio (ppm)")
+        if "brightness_temperature" in pc:
+            brightness_temperature_axis(axes[0][-1], pc["flux_ratio"].values,
+                                        pc["brightness_temperature"].values)
+        title = coordinate_label(pc[first]) if first in pc.coords else first
+        fig.legend(*axes[0][0].get_legend_handles_labels(), loc="outside right center",
+                   title=title.replace(" (", "\n("), frameon=False)
+        fig.suptitle(f"phase curves over the sweep ({pc.attrs.get('band', '')}; dashed: "
+                     "eclipse)")
     if path is None:
         return fig
     return save_figure(fig, path, overwrite)

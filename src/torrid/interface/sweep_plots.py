@@ -2,29 +2,46 @@
 thickness maps of every point as small multiples.
 
 The two main axes are the two dimensions with the most values (the first in the file on a
-tie); any other dimension is held at its middle value (named in the title). An axis whose
-values are log-spaced is drawn on a log scale; one with ``inf`` or strings as values is drawn
-as evenly spaced labelled categories. Failed points are crossed out, missing ones circled.
+tie); any other dimension is held at its middle value (named in the title). Axes, ticks,
+cell values, contours and markers follow :mod:`torrid.interface.axes_style`: labels in words
+with units from the settings table, log-spaced axes on a log scale with rounded ticks,
+``inf`` as "none" at the end of its axis, strings as labelled categories.
 """
 
 from __future__ import annotations
 
 import os
+import textwrap
 from pathlib import Path
 
 import numpy as np
 import xarray as xr
 
-from torrid.io.runfile import refuse_existing
+from torrid.interface.axes_style import (Axis, colour_limits, draws_contours, figure_style,
+                                        legend_below, mark_points, rounded, status_masks,
+                                        value_label, write_cell_values, writes_values)
 from torrid.interface.plots import plt, save_figure
+from torrid.interface.temperature_view import (check_quantity, contrast_in_kelvin, end_points,
+                                               equilibrium_range, temperature_note,
+                                               to_temperature)
+from torrid.io.runfile import refuse_existing
+from torrid.physics.diagnostics import HOTSPOT_CONTRAST_THRESHOLD
 
-#: (variable, label, factor) of the panels of :func:`plot_sweep_diagnostics`.
-PANELS = (("hotspot_offset", "hotspot offset (degrees east)", 1.0),
-          ("day_night_contrast", "day-night contrast (hemisphere means)", 1.0),
-          ("peak_contrast", "peak-to-peak contrast", 1.0),
-          ("equatorial_zonal_wind", "equatorial jet (zonal-mean u, km/s)", 1e-3))
+#: (variable, label, factor, kind) of the panels of :func:`plot_sweep_diagnostics`; kind:
+#: ``signed`` (diverging colours around 0) or ``contrast`` (0 to 1).
+PANELS = (("hotspot_offset", "hotspot offset (degrees east)", 1.0, "signed"),
+          ("day_night_contrast", "day-night contrast (hemisphere means)", 1.0, "contrast"),
+          ("peak_contrast", "peak-to-peak contrast", 1.0, "contrast"),
+          ("equatorial_zonal_wind", "equatorial jet (zonal-mean u, km/s)", 1e-3, "signed"))
+#: The same panels drawn as temperature: the contrasts become differences in K.
+TEMPERATURE_LABELS = {"day_night_contrast": "day-night temperature difference (K, hemisphere "
+                                            "means)",
+                      "peak_contrast": "peak-to-peak temperature difference (K)"}
 #: Small multiples: at most this many panels along either axis (evenly thinned beyond).
 MAX_PANELS_PER_AXIS = 8
+#: Wind arrows per panel of the maps grid, along latitude and longitude.
+ARROWS = (7, 12)
+COLOUR_SCALES = ("panel", "shared")
 SWEEP_ATTRIBUTE = "torrid_sweep"
 
 
@@ -47,62 +64,50 @@ def _held(table: xr.Dataset, keep: list[str]) -> tuple[xr.Dataset, str]:
     """Hold every other dimension at its middle value; return the slice and a description."""
     others = {d: table.sizes[d] // 2 for d in table["run_status"].dims if d not in keep}
     held = table.isel(others)
-    text = ", ".join(f"{d} = {_label(held[d].values)}" for d in others)
+    text = ", ".join(value_label(held[d], held[d].values) for d in others)
     return held, text
 
 
-def _label(value) -> str:
-    value = value.item() if hasattr(value, "item") else value
-    return f"{value:g}" if isinstance(value, float) else str(value)
+def undefined_hotspots(table: xr.Dataset) -> xr.DataArray:
+    """True at the finished points whose hotspot offsets are undefined (NaN because the map
+    is too flat: ``hotspot_offset_defined`` = 0)."""
+    finished = table["run_status"].isin(["complete", "steady"])
+    if "hotspot_offset_defined" in table:
+        return finished & (table["hotspot_offset_defined"] == 0)
+    if "hotspot_offset" in table:
+        return finished & table["hotspot_offset"].isnull()
+    return xr.zeros_like(finished)
 
 
-def _positions(coord: xr.DataArray) -> tuple[np.ndarray, np.ndarray, str]:
-    """Plot positions (centres, cell edges) and scale of one swept coordinate."""
-    values = coord.values
-    numeric = np.issubdtype(values.dtype, np.number) and np.isfinite(values).all()
-    if not numeric or values.size < 2:
-        centres = np.arange(values.size, dtype=float)
-        return centres, np.arange(values.size + 1) - 0.5, "categories"
-    order_ok = np.all(np.diff(values) > 0) or np.all(np.diff(values) < 0)
-    log = coord.attrs.get("spacing") == "log" or (
-        (values > 0).all() and order_ok and values.size > 2
-        and np.allclose(np.diff(np.log(values)), np.log(values[1] / values[0]), rtol=1e-6))
-    if not order_ok:
-        centres = np.arange(values.size, dtype=float)
-        return centres, np.arange(values.size + 1) - 0.5, "categories"
-    x = np.log(values) if log else values.astype(float)
-    inner = 0.5 * (x[1:] + x[:-1])
-    edges = np.concatenate([[x[0] - (inner[0] - x[0])], inner, [x[-1] + (x[-1] - inner[-1])]])
-    if log:
-        return values.astype(float), np.exp(edges), "log"
-    return values.astype(float), edges, "linear"
+def _panel_values(held, name, factor, quantity, settings):
+    values = held[name] * factor
+    label = dict((p[0], p[1]) for p in PANELS)[name]
+    if quantity == "temperature" and name in TEMPERATURE_LABELS:
+        values = contrast_in_kelvin(name, values, settings)
+        label = TEMPERATURE_LABELS[name]
+    return values, label
 
 
-def _set_axis(ax, which: str, coord: xr.DataArray, centres, scale: str) -> None:
-    set_scale, set_ticks, set_labels, set_label = (
-        (ax.set_xscale, ax.set_xticks, ax.set_xticklabels, ax.set_xlabel) if which == "x"
-        else (ax.set_yscale, ax.set_yticks, ax.set_yticklabels, ax.set_ylabel))
-    if scale == "log":
-        set_scale("log")
-    set_ticks(centres)
-    set_labels([_label(v) for v in coord.values])
-    units = coord.attrs.get("units")
-    key = coord.attrs.get("config_key", coord.name)
-    set_label(f"{key} ({units})" if units and units != "1" else key)
-
-
-def _mark_points(ax, status: np.ndarray, xs, ys) -> None:
-    """Cross out failed points and circle missing ones (status[y, x])."""
-    for kind, marker, colour in (("failed", "x", "red"), ("missing", "o", "grey")):
-        iy, ix = np.nonzero(status == kind)
-        if iy.size:
-            ax.plot(np.asarray(xs)[ix], np.asarray(ys)[iy], ls="none", marker=marker, ms=9,
-                    mfc="none", mec=colour, mew=1.5, label=kind)
+def _limits(kind: str, finite: np.ndarray, quantity: str) -> dict:
+    if finite.size == 0:
+        return {}
+    if kind == "contrast":
+        top = 1.0 if quantity == "thickness" else float(finite.max()) or 1.0
+        return {"vmin": min(0.0, float(finite.min())), "vmax": max(top, float(finite.max()))}
+    limit = float(np.abs(finite).max()) or 1.0
+    return {"vmin": -limit, "vmax": limit}
 
 
 def plot_sweep_diagnostics(table: xr.Dataset, path: str | os.PathLike | None = None,
-                           overwrite: bool = False):
-    """Hotspot offset, day-night contrast and jet speed over the two main swept axes.
+                           overwrite: bool = False, *, quantity: str = "thickness",
+                           settings=None):
+    """Hotspot offset, day-night and peak contrasts and jet speed over the two main swept
+    axes (a line over one axis if only one has several values).
+
+    Cells hold their values when the grid is small, contours appear only on large grids
+    (:mod:`torrid.interface.axes_style`); markers show points that did not reach their
+    steady state, failed or are missing, and hotspot offsets that are undefined (the map too
+    flat, ``hotspot_offset_defined`` = 0) are left blank and marked "n/d".
 
     Parameters
     ----------
@@ -112,7 +117,18 @@ def plot_sweep_diagnostics(table: xr.Dataset, path: str | os.PathLike | None = N
         PNG file to write; the figure is returned if omitted.
     overwrite : bool
         Replace an existing image.
+    quantity : str
+        ``thickness`` (contrasts relative to the equilibrium's) or ``temperature`` (the
+        contrasts as temperature differences in K, by the phase curves' map).
+    settings : ObserverSettings, optional
+        The temperature map's end points (default: derived from the default star).
+
+    Returns
+    -------
+    matplotlib.figure.Figure or pathlib.Path
+        The figure, or the image written.
     """
+    check_quantity(quantity)
     panels = [p for p in PANELS if p[0] in table]
     if not panels:
         raise ValueError("the sweep table has no planet diagnostics to plot (hotspot_offset, "
@@ -121,50 +137,55 @@ def plot_sweep_diagnostics(table: xr.Dataset, path: str | os.PathLike | None = N
     if not dims:
         raise ValueError("the sweep table has a single point: nothing to draw over its axes")
     held, fixed = _held(table, dims)
-    fig, axes = plt.subplots(1, len(panels), figsize=(5.2 * len(panels), 4.2),
-                             constrained_layout=True, squeeze=False)
-    xc, xe, xscale = _positions(held[dims[0]])
-    for ax, (name, label, factor) in zip(axes[0], panels):
-        if len(dims) == 1:
-            values = held[name].transpose(dims[0]).values * factor
-            ax.plot(xc, values, marker="o", color="tab:blue")
-            status = held["run_status"].values
-            for kind, colour in (("failed", "red"), ("missing", "grey")):
-                for x in np.asarray(xc)[status == kind]:
-                    ax.axvline(x, color=colour, ls="--", lw=1, label=kind)
-            ax.set_ylabel(label)
-        else:
-            yc, ye, yscale = _positions(held[dims[1]])
-            values = held[name].transpose(dims[1], dims[0]).values * factor
-            finite = values[np.isfinite(values)]
-            mesh = ax.pcolormesh(xe, ye, np.ma.masked_invalid(values), shading="flat",
-                                 cmap="magma" if name.endswith("contrast") else "RdBu_r",
-                                 **_limits(name, finite))
-            fig.colorbar(mesh, ax=ax, label=label, shrink=0.9)
-            if min(values.shape) >= 2 and finite.size >= 4 and np.ptp(finite) > 0:
-                lines = ax.contour(xc, yc, np.ma.masked_invalid(values), levels=6,
-                                   colors="black", linewidths=0.8)
-                ax.clabel(lines, fmt="%.3g", fontsize=7)
-            _mark_points(ax, held["run_status"].transpose(dims[1], dims[0]).values, xc, yc)
-            _set_axis(ax, "y", held[dims[1]], yc, yscale)
-        _set_axis(ax, "x", held[dims[0]], xc, xscale)
-        ax.set_title(label, fontsize=10)
-        if ax is axes[0][0] and ax.get_legend_handles_labels()[0]:
-            ax.legend(loc="best", fontsize=7, framealpha=0.8)
-    fig.suptitle(f"sweep {table.attrs.get(SWEEP_ATTRIBUTE, '')}"
-                 + (f" ({fixed})" if fixed else ""))
+    order = dims[::-1]  # (y, x)
+    xaxis = Axis(held[dims[0]])
+    yaxis = Axis(held[dims[1]]) if len(dims) > 1 else None
+    masks = status_masks(held, order)
+    undefined = undefined_hotspots(held).transpose(*order).values
+    with figure_style():
+        ncols = 2 if len(panels) > 2 else len(panels)
+        nrows = int(np.ceil(len(panels) / ncols))
+        fig, axes = plt.subplots(nrows, ncols, figsize=(6.2 * ncols, 4.6 * nrows + 0.6),
+                                 layout="constrained", squeeze=False)
+        for ax in axes.ravel()[len(panels):]:
+            ax.set_visible(False)
+        for ax, (name, _, factor, kind) in zip(axes.ravel(), panels):
+            values, label = _panel_values(held, name, factor, quantity, settings)
+            values = values.transpose(*order).values
+            flagged = undefined if name.startswith("hotspot") else None
+            point_masks = dict(masks)
+            if flagged is not None and not writes_values(flagged.shape):
+                point_masks["undefined"] = flagged  # small grids say "n/d" in the cell
+            if yaxis is None:
+                ax.plot(xaxis.centres, values, marker="o", color="tab:blue")
+                ax.set_ylabel(label)
+                mark_points(ax, xaxis, None, point_masks)
+            else:
+                finite = values[np.isfinite(values)]
+                ax.set_facecolor("0.92")
+                mesh = ax.pcolormesh(xaxis.edges, yaxis.edges, np.ma.masked_invalid(values),
+                                     shading="flat", cmap="magma" if kind == "contrast"
+                                     else "RdBu_r", **_limits(kind, finite, quantity))
+                fig.colorbar(mesh, ax=ax, label=label, shrink=0.92)
+                if draws_contours(values.shape) and finite.size >= 4 and np.ptp(finite) > 0:
+                    lines = ax.contour(xaxis.centres, yaxis.centres, np.ma.masked_invalid(values),
+                                       levels=6, colors="black", linewidths=0.8)
+                    ax.clabel(lines, fmt=lambda v: rounded(v), fontsize=8)
+                if writes_values(values.shape):
+                    write_cell_values(ax, xaxis, yaxis, values, mesh, undefined=flagged)
+                mark_points(ax, xaxis, yaxis, point_masks)
+                yaxis.apply(ax, "y")
+            xaxis.apply(ax, "x")
+            ax.set_title(label)
+        legend_below(fig, axes)
+        note = ("" if not undefined.any() else
+                "\nhotspot offsets undefined (n/d, blank) where the map's longitudinal contrast "
+                f"is below {HOTSPOT_CONTRAST_THRESHOLD:g}")
+        fig.suptitle(f"sweep {table.attrs.get(SWEEP_ATTRIBUTE, '')}"
+                     + (f" ({fixed})" if fixed else "") + note)
     if path is None:
         return fig
     return save_figure(fig, path, overwrite)
-
-
-def _limits(name: str, finite: np.ndarray) -> dict:
-    if finite.size == 0:
-        return {}
-    if name.endswith("contrast"):
-        return {"vmin": min(0.0, float(finite.min())), "vmax": max(1.0, float(finite.max()))}
-    limit = float(np.abs(finite).max()) or 1.0
-    return {"vmin": -limit, "vmax": limit}
 
 
 def _thinned(size: int) -> np.ndarray:
@@ -181,10 +202,53 @@ def _ascending(coord: xr.DataArray, indices: np.ndarray) -> np.ndarray:
     return indices
 
 
+def _map_field(held: xr.Dataset, quantity: str, settings):
+    """The maps to draw (km or K), their colour label and the equilibrium's range in the
+    same units (per point)."""
+    low, high = equilibrium_range(held)
+    if quantity == "temperature":
+        night, day = end_points(settings)
+        field = to_temperature(held["h"], low, high, settings)
+        return field, "temperature (K)", xr.full_like(held["run_status"], day - night,
+                                                      dtype=float)
+    span = (xr.DataArray(high) - xr.DataArray(low)) / 1e3
+    return held["h"] / 1e3, "layer thickness h (km)", span.broadcast_like(held["run_status"])
+
+
 def plot_sweep_maps(table: xr.Dataset, path: str | os.PathLike | None = None,
-                    overwrite: bool = False):
-    """Small multiples of the final thickness map h of every point over the two main axes
-    (one shared colour scale; at most 8 panels along an axis)."""
+                    overwrite: bool = False, *, quantity: str = "thickness",
+                    scale: str = "panel", arrows: bool = True, settings=None):
+    """Small multiples of the final maps of every point over the two main axes (at most 8
+    panels along an axis), with wind arrows, the substellar point (star) and the hotspot
+    (cross, at the point's final hotspot offset: the window mean that the sweep table and the
+    headline report; "no hotspot" where it is undefined).
+
+    Parameters
+    ----------
+    table : xarray.Dataset
+        A sweep table with maps (``torrid collect --maps``).
+    path : path, optional
+        PNG file to write; the figure is returned if omitted.
+    overwrite : bool
+        Replace an existing image.
+    quantity : str
+        ``thickness`` (h, km) or ``temperature`` (K, by the phase curves' map).
+    scale : str
+        ``panel``: each panel its own colour scale (spanning at least 2 % of the equilibrium's
+        range), so weak contrasts stay visible; ``shared``: one scale for all panels.
+    arrows : bool
+        Draw the wind arrows (one length scale for all panels, key below).
+    settings : ObserverSettings, optional
+        The temperature map's end points (default: derived from the default star).
+
+    Returns
+    -------
+    matplotlib.figure.Figure or pathlib.Path
+        The figure, or the image written.
+    """
+    check_quantity(quantity)
+    if scale not in COLOUR_SCALES:
+        raise ValueError(f"scale = {scale!r}: must be one of {', '.join(COLOUR_SCALES)}")
     if "h" not in table:
         raise ValueError("the sweep table has no maps (collect it with --maps)")
     dims = main_dimensions(table) or [d for d in table["run_status"].dims][:1]
@@ -192,53 +256,122 @@ def plot_sweep_maps(table: xr.Dataset, path: str | os.PathLike | None = None,
     cols = _ascending(held[dims[0]], _thinned(held.sizes[dims[0]]))
     rows = (_ascending(held[dims[1]], _thinned(held.sizes[dims[1]])) if len(dims) > 1
             else np.array([0]))
-    h = held["h"] / 1e3
-    finite = h.values[np.isfinite(h.values)]
-    vmin, vmax = (float(finite.min()), float(finite.max())) if finite.size else (0.0, 1.0)
-    fig, axes = plt.subplots(len(rows), len(cols), figsize=(2.4 * len(cols) + 1.2,
-                                                             1.4 * len(rows) + 0.8),
-                             squeeze=False, sharex=True, sharey=True, constrained_layout=True)
-    mesh = None
-    for r, iy in enumerate(rows[::-1]):  # largest value of the second axis on top
-        for c, ix in enumerate(cols):
-            ax = axes[r][c]
-            select = {dims[0]: ix, **({dims[1]: iy} if len(dims) > 1 else {})}
-            cell = held.isel(select)
-            status = str(cell["run_status"].values)
-            if status in ("complete", "steady"):
-                mesh = ax.pcolormesh(held["lon"], held["lat"], h.isel(select).values,
-                                     shading="auto", cmap="inferno", vmin=vmin, vmax=vmax)
-            else:
-                ax.text(0.5, 0.5, status, ha="center", va="center", transform=ax.transAxes,
-                        color="red" if status == "failed" else "grey")
-            title = f"{dims[0]}={_label(held[dims[0]].values[ix])}"
-            if len(dims) > 1:
-                title += f"\n{dims[1]}={_label(held[dims[1]].values[iy])}"
-            ax.set_title(title, fontsize=6)
-            ax.tick_params(labelsize=6)
-    if mesh is not None:
-        fig.colorbar(mesh, ax=axes, label="layer thickness h (km)", shrink=0.8)
-    fig.supxlabel("longitude east of the substellar meridian (degrees)", fontsize=8)
-    fig.supylabel("latitude (degrees north)", fontsize=8)
-    fig.suptitle(f"sweep {table.attrs.get(SWEEP_ATTRIBUTE, '')}: final thickness maps"
-                 + (f" ({fixed})" if fixed else ""), fontsize=9)
+    field, label, span = _map_field(held, quantity, settings)
+    finite = field.values[np.isfinite(field.values)]
+    shared = (float(finite.min()), float(finite.max())) if finite.size else (0.0, 1.0)
+    speed = np.hypot(held["u"], held["v"]).values
+    speed_max = float(np.nanmax(speed)) if np.isfinite(speed).any() else 0.0
+    undefined = undefined_hotspots(held)
+    with figure_style():
+        fig, axes = plt.subplots(len(rows), len(cols),
+                                 figsize=(3.5 * len(cols) + 1.0, 2.05 * len(rows) + 1.4),
+                                 squeeze=False, sharex=True, sharey=True, layout="constrained")
+        mesh, quiver = None, None
+        for r, iy in enumerate(rows[::-1]):  # largest value of the second axis on top
+            for c, ix in enumerate(cols):
+                ax = axes[r][c]
+                select = {dims[0]: ix, **({dims[1]: iy} if len(dims) > 1 else {})}
+                cell = held.isel(select)
+                status = str(cell["run_status"].values)
+                if r == 0:
+                    ax.set_title(value_label(held[dims[0]], held[dims[0]].values[ix]),
+                                 fontsize=10)
+                if c == 0 and len(dims) > 1:
+                    ax.set_ylabel("\n".join(textwrap.wrap(value_label(
+                        held[dims[1]], held[dims[1]].values[iy]), 18)), fontsize=9)
+                if status not in ("complete", "steady"):
+                    ax.text(0.5, 0.5, status, ha="center", va="center", transform=ax.transAxes,
+                            color="red" if status == "failed" else "grey", fontsize=12)
+                    continue
+                values = field.isel(select).values
+                limits = shared if scale == "shared" else colour_limits(
+                    values, float(span.isel(select)))
+                mesh = ax.pcolormesh(held["lon"], held["lat"], values, shading="auto",
+                                     cmap="inferno", vmin=limits[0], vmax=limits[1])
+                if scale == "panel":
+                    bar = fig.colorbar(mesh, ax=ax, pad=0.01, fraction=0.06, aspect=12)
+                    bar.ax.tick_params(labelsize=8)
+                    bar.locator = plt.MaxNLocator(3)
+                    bar.update_ticks()
+                if arrows and speed_max > 0:
+                    quiver = _arrows(ax, held["lon"].values, held["lat"].values,
+                                     cell["u"].values, cell["v"].values, speed_max)
+                _marks(ax, cell, bool(undefined.isel(select)), status)
+        _map_axes(fig, axes, held)
+        if mesh is not None and scale == "shared":
+            fig.colorbar(mesh, ax=axes, label=label, shrink=0.8)
+        if quiver is not None:
+            key = float(f"{speed_max:.1g}")
+            quiver.axes.quiverkey(quiver, 0.97, 0.012, key, f"arrows: wind, {key / 1e3:g} km/s",
+                                  labelpos="W", coordinates="figure", color="black",
+                                  fontproperties={"size": 9})
+        what = "temperature" if quantity == "temperature" else "thickness"
+        fig.suptitle(f"sweep {table.attrs.get(SWEEP_ATTRIBUTE, '')}: final {what} maps"
+                     + (f", {label} (one scale per panel)" if scale == "panel" else "")
+                     + (f" ({fixed})" if fixed else ""))
+        if quantity == "temperature":
+            fig.text(0.5, -0.01, temperature_note(settings), ha="center", va="top", fontsize=9)
     if path is None:
         return fig
     return save_figure(fig, path, overwrite)
 
 
+def _arrows(ax, lon, lat, u, v, speed_max):
+    """Wind arrows on a coarse subset of the grid (one length scale for all panels)."""
+    step_lat = max(1, len(lat) // ARROWS[0])
+    step_lon = max(1, len(lon) // ARROWS[1])
+    rows = slice(step_lat // 2, None, step_lat)
+    cols = slice(step_lon // 2, None, step_lon)
+    return ax.quiver(lon[cols], lat[rows], u[rows, cols], v[rows, cols], color="white",
+                     scale=speed_max * 9, width=0.006, headwidth=3.5, alpha=0.9)
+
+
+def _marks(ax, cell: xr.Dataset, undefined: bool, status: str) -> None:
+    """Substellar point, hotspot (or "no hotspot"), and "not steady"."""
+    ax.plot(0, 0, marker="*", ms=11, color="gold", mec="black", mew=0.6, ls="none",
+            label="substellar point")
+    offset = float(cell["hotspot_offset"]) if "hotspot_offset" in cell else np.nan
+    if np.isfinite(offset):
+        ax.plot(offset, 0, marker="X", ms=9, color="cyan", mec="black", mew=0.6, ls="none",
+                label="hotspot (final offset)")
+    elif undefined:
+        contrast = (float(cell["longitudinal_contrast"]) if "longitudinal_contrast" in cell
+                    else np.nan)
+        ax.text(0.03, 0.05, f"no hotspot (contrast {rounded(contrast)})", fontsize=8,
+                color="white", transform=ax.transAxes, va="bottom")
+    if status == "complete":
+        ax.text(0.03, 0.95, "not steady", fontsize=8, color="tab:orange", va="top",
+                transform=ax.transAxes, fontweight="bold")
+
+
+def _map_axes(fig, axes, held) -> None:
+    for ax in axes.ravel():
+        ax.set_xlim(-180, 180)
+        ax.set_ylim(-90, 90)
+        ax.set_xticks([-180, -90, 0, 90, 180])
+        ax.set_yticks([-60, 0, 60])
+    for ax in axes[-1]:
+        ax.set_xlabel("longitude (deg east of\nthe substellar point)", fontsize=9)
+    fig.supylabel("latitude (degrees north)")
+    legend_below(fig, axes)
+
+
 def plot_sweep_file(path: str | os.PathLike, output: str | os.PathLike | None = None,
-                    overwrite: bool = False) -> list[Path]:
+                    overwrite: bool = False, *, quantity: str = "thickness",
+                    scale: str = "panel", settings=None) -> list[Path]:
     """Draw a sweep table file: ``<stem>.png`` (diagnostics) and, if the table has maps,
     ``<stem>-maps.png``; ``output`` renames the first (the second follows it). Existing
-    images are refused before anything is drawn unless ``overwrite``."""
+    images are refused before anything is drawn unless ``overwrite``. ``quantity``,
+    ``scale`` and ``settings`` as in :func:`plot_sweep_maps`."""
     path = Path(path)
     image = Path(output) if output else path.with_suffix(".png")
     with xr.open_dataset(path, engine="netcdf4") as ds:
         table = ds.load()
     images = [image] + ([image.with_name(f"{image.stem}-maps.png")] if "h" in table else [])
     refuse_existing(images, overwrite)
-    plot_sweep_diagnostics(table, images[0], overwrite=overwrite)
+    plot_sweep_diagnostics(table, images[0], overwrite=overwrite, quantity=quantity,
+                           settings=settings)
     if len(images) > 1:
-        plot_sweep_maps(table, images[1], overwrite=overwrite)
+        plot_sweep_maps(table, images[1], overwrite=overwrite, quantity=quantity, scale=scale,
+                        settings=settings)
     return images

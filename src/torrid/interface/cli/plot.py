@@ -8,6 +8,20 @@ from pathlib import Path
 
 from torrid.io.runfile import is_planet_run, refuse_existing
 
+#: The observer options that set the temperature map's end points (as in torrid phase).
+TEMPERATURE_OPTIONS = (
+    ("--night-temperature", "K", "--temperature: K at the nightside equilibrium thickness H "
+                                 "(default: derived from the star)"),
+    ("--day-temperature", "K", "--temperature: K at the substellar equilibrium thickness "
+                               "(default: derived from the star)"),
+    ("--star-temperature", "K", "--temperature: stellar effective temperature of the derived "
+                                "end points"),
+    ("--star-radius", "RSUN", "--temperature: stellar radius of the derived end points"),
+    ("--semi-major-axis", "AU", "--temperature: semi-major axis of the derived end points"),
+    ("--albedo", "A_B", "--temperature: Bond albedo of the derived end points"),
+    ("--redistribution", "EPSILON", "--temperature: redistribution of the derived end points"),
+)
+
 
 def add_parser(sub: argparse._SubParsersAction) -> None:
     p = sub.add_parser(
@@ -28,25 +42,40 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
                    help="simulated day to draw (default: the last output)")
     p.add_argument("-o", "--output", type=Path, default=None, metavar="FILE.png",
                    help="image to write (default: beside the run file, named as above)")
+    p.add_argument("--temperature", action="store_true",
+                   help="draw temperature instead of thickness, by the phase curves' map "
+                        "(end points given below or derived from the star, as in torrid phase)")
+    p.add_argument("--scale", choices=("panel", "shared"), default="panel",  # COLOUR_SCALES
+                   help="sweep maps: one colour scale per panel (default) or one shared by all")
+    num = dict(type=float, default=None)
+    for option, metavar, text in TEMPERATURE_OPTIONS:
+        p.add_argument(option, metavar=metavar, help=text, **num)
     p.add_argument("--overwrite", action="store_true", help="replace existing images")
-    p.set_defaults(handler=handle)
+    p.set_defaults(handler=handle, config=None)
 
 
 def handle(args: argparse.Namespace) -> int:
     from torrid.interface import plots
+    from torrid.interface.cli.observer_options import build_settings
     from torrid.interface.sweep_plots import is_sweep_table, plot_sweep_file
     from torrid.io.runfile import read_run
 
+    quantity = "temperature" if args.temperature else "thickness"
+    settings = build_settings(args) if args.temperature else None
     if is_sweep_table(args.run_file):  # a table of torrid sweep / torrid collect
         if args.variable or args.time is not None:
             raise ValueError(f"{args.run_file} is a sweep table: --variable and --time apply "
                              "to run files only")
-        images = plot_sweep_file(args.run_file, args.output, overwrite=args.overwrite)
+        images = plot_sweep_file(args.run_file, args.output, overwrite=args.overwrite,
+                                 quantity=quantity, scale=args.scale, settings=settings)
         print(f"wrote {' and '.join(map(str, images))}", file=sys.stdout)
         return 0
     ds = read_run(args.run_file)
     stem = args.run_file.with_suffix("")
     if args.variable or not is_planet_run(ds):
+        if args.temperature:
+            raise ValueError(f"--temperature: {args.run_file} is not a planet run (or "
+                             "--variable was given); temperature maps are of planet runs")
         variable = args.variable or "h"
         out = args.output or Path(f"{stem}-{variable}.png")
         plots.plot_map(ds, variable, args.time, out, overwrite=args.overwrite)
@@ -55,7 +84,9 @@ def handle(args: argparse.Namespace) -> int:
     image = args.output or stem.with_suffix(".png")
     spinup = image.with_name(f"{image.stem}-spinup.png")
     refuse_existing((image, spinup), args.overwrite)
-    plots.plot_planet_map(ds, image, overwrite=args.overwrite, time_days=args.time)
-    plots.plot_spinup(ds, spinup, overwrite=args.overwrite)
+    plots.plot_planet_map(ds, image, overwrite=args.overwrite, time_days=args.time,
+                          quantity=quantity, settings=settings)
+    plots.plot_spinup(ds, spinup, overwrite=args.overwrite, quantity=quantity,
+                      settings=settings)
     print(f"wrote {image} and {spinup}", file=sys.stdout)
     return 0
