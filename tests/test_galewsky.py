@@ -117,13 +117,14 @@ def test_perturbed_jet_vorticity_written_at_day_6(tmp_path):
     path = tmp_path / "galewsky_t85.nc"
     cfg = torrid.build_case_config("galewsky", truncation=TRUNCATION, days=DAYS)
     ds = torrid.run(cfg, output=path)
-    with xr.open_dataset(path, engine="netcdf4") as written:
+    with xr.open_dataset(path, engine="netcdf4") as opened:  # as a user opens it
+        written = opened.swap_dims(time="time_days")  # select by simulated day (README)
         assert written.time_days.values[-1] == pytest.approx(DAYS)
-        zeta = written.vorticity.sel(time=DAYS).values
+        zeta = written.vorticity.sel(time_days=DAYS).values
         assert written.vorticity.attrs["units"] == "s-1"
         np.testing.assert_array_equal(zeta, ds.vorticity.values[-1])  # lossless round trip
-        day2 = written.vorticity.sel(time=2.0).values
-        v_max = float(np.abs(written.v.sel(time=DAYS).values).max())
+        day2 = written.vorticity.sel(time_days=2.0).values
+        v_max = float(np.abs(written.v.sel(time_days=DAYS).values).max())
         mass = written.mean_thickness.values
     assert np.all(np.isfinite(zeta))
     nonzonal = _nonzonal(zeta)

@@ -153,7 +153,7 @@ def plot_planet_map(ds: xr.Dataset, path: str | os.PathLike | None = None,
                            v[::step_lat, ::step_lon], color="white", scale=speed_max * 20,
                            width=0.0025)
         key = float(f"{speed_max:.1g}")
-        ax.quiverkey(arrows, 0.88, 1.04, key, f"{key / 1e3:g} km/s", labelpos="E",
+        ax.quiverkey(arrows, 0.86, -0.11, key, f"wind {key / 1e3:g} km/s", labelpos="E",
                      color="black")
         ax.plot(0, 0, marker="*", ms=14, color="gold", mec="black", ls="none",
                 label="substellar point")
@@ -168,10 +168,9 @@ def plot_planet_map(ds: xr.Dataset, path: str | os.PathLike | None = None,
         ax.set_ylim(-90, 90)
         ax.set_xlabel("longitude east of the substellar point (degrees)")
         ax.set_ylabel("latitude (degrees north)")
-        ax.set_title(f"{ds.attrs.get('title', 'torrid run')}, day {day:g}")
-        if quantity == "temperature":
-            ax.text(0, -0.16, temperature_note(settings), transform=ax.transAxes, fontsize=8,
-                    va="top")
+        ax.set_title(f"{ds.attrs.get('title', 'torrid run')}, day {day:g}"
+                     + (f"\n{temperature_note(settings)}" if quantity == "temperature" else ""),
+                     fontsize=10)
         side.plot(u.mean(axis=1) / 1e3, lat, color="tab:red")
         side.axvline(0, color="grey", lw=0.8)
         side.set_ylim(-90, 90)
@@ -220,8 +219,7 @@ def plot_spinup(ds: xr.Dataset, path: str | os.PathLike | None = None, overwrite
             notes.append("dashed: steady state reached")
         if length:
             notes.append(f"shaded: the final values' window ({window_phrase(ds.attrs)})")
-        fig.suptitle("spin-up diagnostics" + (f" ({'; '.join(notes)})" if notes else ""),
-                     fontsize=11)
+        fig.suptitle("spin-up diagnostics" + ("".join(f"\n{n}" for n in notes)), fontsize=11)
     if path is None:
         return fig
     return save_figure(fig, path, overwrite)

@@ -308,9 +308,8 @@ def plot_sweep_maps(table: xr.Dataset, path: str | os.PathLike | None = None,
         what = "temperature" if quantity == "temperature" else "thickness"
         fig.suptitle(f"sweep {table.attrs.get(SWEEP_ATTRIBUTE, '')}: final {what} maps"
                      + (f", {label} (one scale per panel)" if scale == "panel" else "")
-                     + (f" ({fixed})" if fixed else ""))
-        if quantity == "temperature":
-            fig.text(0.5, -0.01, temperature_note(settings), ha="center", va="top", fontsize=9)
+                     + (f" ({fixed})" if fixed else "")
+                     + (f"\n{temperature_note(settings)}" if quantity == "temperature" else ""))
     if path is None:
         return fig
     return save_figure(fig, path, overwrite)
