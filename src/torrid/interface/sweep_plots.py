@@ -15,6 +15,7 @@ from pathlib import Path
 import numpy as np
 import xarray as xr
 
+from torrid.io.pointfile import FINISHED
 from torrid.io.runfile import refuse_existing
 from torrid.interface.plots import plt, save_figure
 
@@ -205,7 +206,7 @@ def plot_sweep_maps(table: xr.Dataset, path: str | os.PathLike | None = None,
             select = {dims[0]: ix, **({dims[1]: iy} if len(dims) > 1 else {})}
             cell = held.isel(select)
             status = str(cell["run_status"].values)
-            if status in ("complete", "steady"):
+            if status in FINISHED:
                 mesh = ax.pcolormesh(held["lon"], held["lat"], h.isel(select).values,
                                      shading="auto", cmap="inferno", vmin=vmin, vmax=vmax)
             else:

@@ -42,6 +42,7 @@ def handle(args: argparse.Namespace) -> int:
             raise ValueError(f"{args.run_file} is a sweep table: --variable and --time apply "
                              "to run files only")
         images = plot_sweep_file(args.run_file, args.output, overwrite=args.overwrite)
+        images += _solver_comparison(args.run_file, images[0], args.overwrite)
         print(f"wrote {' and '.join(map(str, images))}", file=sys.stdout)
         return 0
     ds = read_run(args.run_file)
@@ -59,3 +60,18 @@ def handle(args: argparse.Namespace) -> int:
     plots.plot_spinup(ds, spinup, overwrite=args.overwrite)
     print(f"wrote {image} and {spinup}", file=sys.stdout)
     return 0
+
+
+def _solver_comparison(table_path: Path, image: Path, overwrite: bool) -> list[Path]:
+    """``<stem>-solvers.png`` beside the diagnostics image, for a table that sweeps
+    numerics.solver over both solvers (linear against nonlinear, issue 13); else nothing."""
+    import xarray as xr
+
+    from torrid.interface.solver_plots import plot_solver_comparison, solver_dimension
+
+    with xr.open_dataset(table_path, engine="netcdf4") as ds:
+        table = ds.load()
+    if solver_dimension(table) is None:
+        return []
+    out = image.with_name(f"{image.stem}-solvers.png")
+    return [plot_solver_comparison(table, out, overwrite=overwrite)]
