@@ -169,3 +169,18 @@ def test_warm_start_begins_at_the_linear_steady_state():
     assert np.abs(warm.h.values[-1] - linear.h.values[0]).max() < 0.01 * scale
     rest, _ = run_config(base, progress=False)
     assert np.abs(rest.h.values[-1] - linear.h.values[0]).max() > 0.1 * scale
+
+
+def test_refused_linear_points_of_a_sweep_are_failed_points(tmp_path, capsys):
+    """A linear point the solver refuses (here an eccentric orbit) is a failed point with the
+    one-line reason; the others are solved."""
+    sweep_file = tmp_path / "ecc.toml"
+    sweep_file.write_text('[numerics]\ntruncation = 10\nsolver = "linear"\n[sweep]\n'
+                          'name = "ecc"\n[[sweep.axis]]\nkey = "orbit.eccentricity"\n'
+                          'values = [0.0, 0.2]\n')
+    assert main(["sweep", str(sweep_file), "--folder", str(tmp_path / "ecc"), "-q"]) == 0
+    out = capsys.readouterr().out
+    assert "1 done (0 steady, 1 linear), 1 failed" in out and "circular synchronous" in out
+    table = load(tmp_path / "ecc" / "ecc-table.nc")
+    assert list(table.run_status.values) == ["linear", "failed"]
+    assert np.isfinite(table.hotspot_offset[0]) and np.isnan(table.hotspot_offset[1])

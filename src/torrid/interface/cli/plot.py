@@ -19,7 +19,9 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
                     "standard case: a lon-lat map of one variable (RUN-<variable>.png). For a "
                     "sweep table (torrid sweep, torrid collect): hotspot offset, day-night "
                     "contrast and jet speed over the two main swept axes (TABLE.png) and, if "
-                    "it has maps, the thickness map of every point (TABLE-maps.png).")
+                    "it has maps, the thickness map of every point (TABLE-maps.png); if it sweeps "
+                    "numerics.solver over both solvers, linear against nonlinear "
+                    "(TABLE-solvers.png).")
     p.add_argument("run_file", type=Path, metavar="RUN.nc", help="run file written by torrid run, or a sweep table")
     p.add_argument("--variable", default=None,
                    help="draw this variable as a plain map: h, u, v, vorticity, divergence "
