@@ -20,8 +20,10 @@ def test_every_example_is_covered():
     assert sorted(p.name for p in EXAMPLES.glob("*.toml")) == sorted(TOML_EXAMPLES)
 
 
-TOML_EXAMPLES = ["default_planet.toml", "eccentric.toml", "strong_drag.toml", "tau_sweep.toml"]
-RUN_EXAMPLES = [name for name in TOML_EXAMPLES if name != "tau_sweep.toml"]
+TOML_EXAMPLES = ["default_planet.toml", "eccentric.toml", "strong_drag.toml", "tau_sweep.toml",
+                 "linear_vs_nonlinear.toml"]
+SWEEP_EXAMPLES = ("tau_sweep.toml", "linear_vs_nonlinear.toml")
+RUN_EXAMPLES = [name for name in TOML_EXAMPLES if name not in SWEEP_EXAMPLES]
 
 
 def test_default_planet_example_is_the_built_in_default():
@@ -45,6 +47,8 @@ def test_toml_example_runs(name, tmp_path, capsys):
 
 BRIEF_ARGS = {
     "galewsky_vorticity.py": ["-T", "21", "--days", "0.5"],
+    # runs linear_vs_nonlinear.toml briefly (2 x 2 timescales x both solvers at T10)
+    "linear_vs_nonlinear.py": ["-T", "10", "--days", "2", "--values", "2", "--workers", "1"],
 }
 
 
@@ -103,3 +107,15 @@ def test_sweep_example_is_valid_and_runs_briefly(tmp_path, capsys):
     assert main(["sweep", str(small), "--folder", str(tmp_path / "s"), "--workers", "1",
                  "-q"]) == 0
     assert "4 done" in capsys.readouterr().out
+
+
+def test_linear_vs_nonlinear_sweep_example_is_valid(tmp_path):
+    """The sweep behind the README's linear-against-nonlinear image: 5 x 4 timescales with the
+    solver crossed, every point valid (the linear solver takes finite drag only here)."""
+    from torrid.io.sweepfile import load_sweep
+
+    spec = load_sweep(EXAMPLES / "linear_vs_nonlinear.toml", folder=tmp_path / "s")
+    assert spec.shape == (5, 4, 2)
+    points = spec.points()
+    assert all(p.config is not None for p in points)
+    assert sum(p.config.numerics.solver == "linear" for p in points) == 20

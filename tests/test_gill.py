@@ -130,11 +130,11 @@ def test_gill_closed_form_is_continuous_and_bounded():
 # the model
 # --------------------------------------------------------------------------------------------
 
-def run_linear_model(deformation_over_radius, truncation=42, n_tau=8.0, coriolis_step=0.5):
-    """Steady state of the model forced by Gill's heating shape.
+def gill_model(deformation_over_radius, truncation=42, coriolis_step=0.5):
+    """The model forced by Gill's heating shape, built from a configuration by the package
+    itself (``build_model``), and the parameters of the mapping.
 
-    The model is built from a configuration by the package itself (``build_model``): the real
-    process modules with the mass-exchange term off (``atmosphere.mass_exchange_momentum =
+    The real process modules with the mass-exchange term off (``atmosphere.mass_exchange_momentum =
     false``), equal uniform relaxation and drag (``tau_rad = tau_drag = tau``), del^8
     hyperdiffusion, the global equilibrium profile. Gill's closed form is for his heating shape,
     not a global cosine, so that shape is set as the relaxation's equilibrium (its cached
@@ -145,8 +145,7 @@ def run_linear_model(deformation_over_radius, truncation=42, n_tau=8.0, coriolis
     ``deformation_over_radius`` is L / a with L = sqrt(c / beta) = sqrt(c a / (2 Omega)), the
     usual equatorial deformation radius (Gill's unit is L / sqrt(2)); c follows from it.
     The step is ``coriolis_step`` / (2 Omega): gravity waves and damping are implicit, the
-    (explicit) Coriolis terms set it. The steady state of the ODE is a fixed point of every
-    step of the IMEX scheme, whatever the step, so the step does not bias the answer.
+    (explicit) Coriolis terms set it.
     """
     beta = 2 * OMEGA / RADIUS
     c = beta * (deformation_over_radius * RADIUS) ** 2
@@ -177,7 +176,25 @@ def run_linear_model(deformation_over_radius, truncation=42, n_tau=8.0, coriolis
     relaxation._phi_eq = phi_mean + phi_eq  # Gill's shape as the (steady) equilibrium
     relaxation._source = tr.to_spectral(phi_eq * relaxation.rate)
     relaxation._cached_time = 0.0
-    state = np.zeros((3, grid.ncoeff), dtype=complex)
+    return model, dict(transforms=tr, lat=lat, x=x, y=y, c=c, phi_mean=phi_mean, length=length,
+                       tau=tau, truncation=truncation, ratio=deformation_over_radius)
+
+
+def gill_fields_of(state, parameters):
+    """Gill's nondimensional p, u, v (his units) of a model state."""
+    fields = grid_state(parameters["transforms"], state)
+    c = parameters["c"]
+    return dict(p=fields["geopotential_deviation"] / parameters["phi_mean"],
+                u=fields["u"] / c, v=fields["v"] / c)
+
+
+def run_linear_model(deformation_over_radius, truncation=42, n_tau=8.0, coriolis_step=0.5):
+    """Steady state of the time-stepped model forced by Gill's heating shape (``gill_model``),
+    from rest for ``n_tau`` tau. The steady state of the ODE is a fixed point of every step of
+    the IMEX scheme, whatever the step, so the step does not bias the answer."""
+    model, run = gill_model(deformation_over_radius, truncation, coriolis_step)
+    tau = run["tau"]
+    state = np.zeros((3, model.grid.ncoeff), dtype=complex)
     stepper = model.stepper
     nsteps = int(np.ceil(n_tau * tau / stepper.dt))
     steps_per_tau = int(round(tau / stepper.dt))
@@ -188,11 +205,8 @@ def run_linear_model(deformation_over_radius, truncation=42, n_tau=8.0, coriolis
         state = stepper.step(state, i * stepper.dt)
     elapsed = time.perf_counter() - start
     change = float(np.abs(state - one_tau_before).max() / np.abs(state).max())
-    fields = grid_state(tr, state)
-    return dict(state=state, transforms=tr, lat=lat, x=x, y=y, c=c, phi_mean=phi_mean,
-                length=length, tau=tau, dt=stepper.dt, nsteps=nsteps, elapsed=elapsed,
-                change=change, p=fields["geopotential_deviation"] / phi_mean, u=fields["u"] / c,
-                v=fields["v"] / c, truncation=truncation, ratio=deformation_over_radius)
+    return dict(run, state=state, dt=stepper.dt, nsteps=nsteps, elapsed=elapsed, change=change,
+                **gill_fields_of(state, run))
 
 
 def band_comparison(run, name):

@@ -20,6 +20,7 @@ import xarray as xr
 from torrid.interface.axes_style import (Axis, colour_limits, draws_contours, figure_style,
                                         legend_below, mark_points, rounded, status_masks,
                                         value_label, write_cell_values, writes_values)
+from torrid.io.pointfile import FINISHED
 from torrid.interface.plots import plt, save_figure
 from torrid.interface.temperature_view import (check_quantity, contrast_in_kelvin, end_points,
                                                equilibrium_range, temperature_note,
@@ -71,7 +72,7 @@ def _held(table: xr.Dataset, keep: list[str]) -> tuple[xr.Dataset, str]:
 def undefined_hotspots(table: xr.Dataset) -> xr.DataArray:
     """True at the finished points whose hotspot offsets are undefined (NaN because the map
     is too flat: ``hotspot_offset_defined`` = 0)."""
-    finished = table["run_status"].isin(["complete", "steady"])
+    finished = table["run_status"].isin(list(FINISHED))
     if "hotspot_offset_defined" in table:
         return finished & (table["hotspot_offset_defined"] == 0)
     if "hotspot_offset" in table:
@@ -279,7 +280,7 @@ def plot_sweep_maps(table: xr.Dataset, path: str | os.PathLike | None = None,
                 if c == 0 and len(dims) > 1:
                     ax.set_ylabel("\n".join(textwrap.wrap(value_label(
                         held[dims[1]], held[dims[1]].values[iy]), 18)), fontsize=9)
-                if status not in ("complete", "steady"):
+                if status not in FINISHED:
                     ax.text(0.5, 0.5, status, ha="center", va="center", transform=ax.transAxes,
                             color="red" if status == "failed" else "grey", fontsize=12)
                     continue

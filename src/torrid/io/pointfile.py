@@ -8,8 +8,8 @@ same name, on any machine, in any sweep.
 
 A point's file is one of:
 
-* a run file written by :func:`torrid.run` (``run_status`` ``complete``, ``steady`` or
-  ``failed``, the last when the run blew up);
+* a run file written by :func:`torrid.run` (``run_status`` ``complete``, ``steady``,
+  ``linear`` (the direct steady solver) or ``failed``, the last when the run blew up);
 * a small record file without data, written for a configuration that does not validate
   (``run_status = "failed"`` and the validation error as ``run_status_reason``).
 
@@ -29,10 +29,14 @@ import xarray as xr
 from torrid.io.provenance import provenance_attrs
 from torrid.io.runfile import write_atomic
 
+#: The status of a linear run (``numerics.solver = "linear"``: the steady state solved directly).
+LINEAR = "linear"
 #: Statuses of a finished run; ``failed`` is a result too (recorded, not rerun by default).
-FINISHED = ("complete", "steady")
+FINISHED = ("complete", "steady", LINEAR)
 FAILED = "failed"
 MISSING = "missing"
+#: Every status a point of a sweep table may have.
+STATUSES = (*FINISHED, FAILED, MISSING)
 IDENTIFIER_LENGTH = 12
 
 
@@ -59,7 +63,7 @@ class PointResult:
     Attributes
     ----------
     status : str
-        ``complete``, ``steady``, ``failed`` or ``missing``.
+        ``complete``, ``steady``, ``linear``, ``failed`` or ``missing``.
     reason : str
         The run's ``run_status_reason``, or why the file is not usable.
     attrs : dict

@@ -23,6 +23,7 @@ from dataclasses import dataclass
 from typing import Any
 
 from torrid.physics.cases import CASES
+from torrid.physics.linear_steady import INITIAL_STATES, SOLVERS
 from torrid.physics.processes.drag import COMPONENTS
 from torrid.physics.processes.relaxation import PROFILES
 
@@ -311,6 +312,10 @@ SETTINGS: tuple[Setting, ...] = (
     Setting("numerics", "threads", int, 1, "1", "threads",
             "transform threads (1 is fastest below T170 on two cores)", minimum=1,
             maximum=256, sweepable=False),
+    Setting("numerics", "solver", str, "stepping", "", "solver",
+            "stepping: the time-stepped nonlinear model; linear: the direct steady solution of "
+            "the problem linearised about rest (circular synchronous orbits; drops the quadratic "
+            "mass-exchange term)", choices=SOLVERS),
     # --- run
     Setting("run", "days", float, 200.0, "days", "run length",
             "simulated days (the upper bound when stopping at steady state)",
@@ -332,6 +337,9 @@ SETTINGS: tuple[Setting, ...] = (
     Setting("run", "initial_fields", str, None, "", "initial fields file",
             "netCDF file with h, u, v on a lon-lat grid (a run file will do) to start from",
             unset="rest (planets) or the case's initial state"),
+    Setting("run", "initial_state", str, "rest", "", "initial state",
+            "planets: rest, or linear (a warm start from the linear steady state of "
+            "numerics.solver = linear)", choices=INITIAL_STATES),
     # --- case
     Setting("case", "name", str, REQUIRED, "", "case",
             "the standard case (see torrid run --help)",

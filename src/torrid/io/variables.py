@@ -200,10 +200,11 @@ SWEEP_VARIABLES: dict[str, Variable] = {
                                                "point's last output)"),
     "hotspot_offset_reason": Variable(_P, None, "why the point's hotspot offsets are defined "
                                                 "or NaN"),
-    "run_status": Variable(_P, None, "status of the point: complete, steady, failed or missing"),
+    "run_status": Variable(_P, None, "status of the point: complete, steady, linear (the direct "
+                                     "steady solver), failed or missing"),
     "run_status_reason": Variable(_P, None, "why the point has its status"),
     "run_file": Variable(_P, None, "the point's run file in the sweep folder (named by its "
-                                   "configuration)"),
+                                   "configuration; empty for linear points, which have none)"),
     "nightside_thickness_m": Variable(_P, "m", "smallest equilibrium thickness (the nightside H; "
                                                "antistellar for the global profile)"),
     "substellar_thickness_m": Variable(_P, "m", "largest (substellar) equilibrium thickness"),

@@ -35,6 +35,8 @@ lon_sub + 90 deg) limb the trailing one.
 
 from __future__ import annotations
 
+import functools
+
 import ducc0
 import numpy as np
 
@@ -137,6 +139,15 @@ def _ring_synthesis(alm: np.ndarray, lmax: int, colatitude: np.ndarray, nphi: in
         nphi=np.full(nring, nphi, dtype=np.uintp), phi0=np.full(nring, float(phi0)),
         ringstart=(np.arange(nring) * nphi).astype(np.uintp), spin=spin)
     return out.reshape(out.shape[0], nring, nphi)
+
+
+@functools.lru_cache(maxsize=8)
+def _gauss_nodes(count: int) -> tuple[np.ndarray, np.ndarray]:
+    """Gauss-Legendre nodes and weights on [-1, 1] (numpy ``leggauss``, cached: it costs an
+    eigenvalue problem, tens of ms at T42, on every output otherwise)."""
+    nodes, weights = np.polynomial.legendre.leggauss(count)
+    nodes.flags.writeable = weights.flags.writeable = False
+    return nodes, weights
 
 
 def _parabolic_peak(values: np.ndarray) -> tuple[float, float]:
@@ -352,7 +363,7 @@ def planet_diagnostics(transforms: Transforms, state: np.ndarray, *, mean_geopot
 
     # limb line-of-sight velocities (u along the terminator is a trigonometric polynomial of
     # degree <= lmax + 1 in latitude; 2 (lmax + 8) Gauss nodes integrate it to round-off)
-    nodes, node_weights = np.polynomial.legendre.leggauss(2 * (lmax + 8))
+    nodes, node_weights = _gauss_nodes(2 * (lmax + 8))
     lat_nodes = 0.5 * np.pi * nodes
     node_weights = 0.5 * node_weights  # uniform mean over lat in [-pi/2, pi/2]
     # two points per ring: lon_sub + 90 deg (east limb) and lon_sub + 270 deg = lon_sub - 90 deg

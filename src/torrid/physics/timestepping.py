@@ -11,11 +11,12 @@ the state at a step boundary is the complete stepper state, so a restart needs n
 
 from __future__ import annotations
 
-from typing import Callable
+from typing import TYPE_CHECKING, Callable
 
 import numpy as np
 
-from torrid.physics.linear import LinearTerms
+if TYPE_CHECKING:  # only a type: the implicit operator imports the processes, which need
+    from torrid.physics.linear import LinearTerms  # this module's limits
 
 # Butcher tableaux (rows = stages 0..4); the new state is the last stage (stiffly accurate).
 EXPLICIT = np.array([

@@ -13,8 +13,9 @@ non-dimension coordinates along their group's dimension. Variables, from each po
   periods and 5 tau_rad);
 * ``hotspot_offset_reason``: why the point's hotspot offsets are defined or NaN (the flag
   ``hotspot_offset_defined`` is among the final values);
-* ``run_status`` (complete, steady, failed, missing), ``run_status_reason`` and ``run_file``
-  (the point's file name in the folder, also for points still missing);
+* ``run_status`` (complete, steady, linear, failed, missing), ``run_status_reason`` and
+  ``run_file`` (the point's file name in the folder, also for points still missing; empty for
+  linear points, which are solved here, in milliseconds, and get no file);
 * ``nightside_thickness_m``, ``substellar_thickness_m`` (the equilibrium's smallest and largest
   thickness) and ``forcing_contrast`` (unless swept: then the coordinate), so
   that ``table.torrid.phase_curve()`` turns the table into phase curves;
@@ -33,15 +34,18 @@ from pathlib import Path
 
 import numpy as np
 import xarray as xr
+from tqdm.auto import tqdm
 
 from torrid.io.config import ConfigError, ModelConfig
-from torrid.io.pointfile import FINISHED, read_point
+from torrid.io.pointfile import (FAILED, FINISHED, LINEAR, MISSING, STATUSES, PointResult,
+                                 read_point)
 from torrid.io.runfile import write_atomic
 from torrid.io.settings import setting
 from torrid.io.sweepmanifest import read_manifest
 from torrid.io.variables import SWEEP_MAPS, SWEEP_VARIABLES, final_value_row
 from torrid.meta import __version__
 from torrid.physics.processes.relaxation import equilibrium_extremes
+from torrid.workflow.linear_run import solve_point
 
 MAP_VARIABLES = SWEEP_MAPS
 #: Inputs of each point's forcing that become variables over the sweep (the thickness ->
@@ -83,7 +87,8 @@ def _final_maps(path: Path) -> dict | None:
             **{name: last[name].values for name in MAP_VARIABLES}}
 
 
-def collect_sweep(folder: str | os.PathLike, maps: bool = False) -> xr.Dataset:
+def collect_sweep(folder: str | os.PathLike, maps: bool = False,
+                  progress: bool = False) -> xr.Dataset:
     """Build the sweep table of ``folder`` (see the module docstring).
 
     Parameters
@@ -92,6 +97,8 @@ def collect_sweep(folder: str | os.PathLike, maps: bool = False) -> xr.Dataset:
         A sweep folder (with its ``sweep.json``).
     maps : bool
         Add the final maps h, u, v of every finished point.
+    progress : bool
+        A progress bar over the linear points solved here.
 
     Raises
     ------
@@ -106,10 +113,12 @@ def collect_sweep(folder: str | os.PathLike, maps: bool = False) -> xr.Dataset:
     shape = tuple(len(d["axes"][0]["values"]) for d in manifest["dimensions"])
     results = {tuple(p["index"]): (p, read_point(folder / p["file"], p["id"]))
                for p in manifest["points"]}
+    solved = _solve_linear_points(results, manifest["base_configuration"], maps, progress)
     finished = [r for _, r in results.values() if r.status in FINISHED]
     finals = sorted({k[len("final_"):] for r in finished for k, v in r.attrs.items()
                      if k.startswith("final_") and _is_number(v)})
-    data = _point_variables(results, manifest["base_configuration"], dims, shape, finals)
+    data = _point_variables(results, manifest["base_configuration"], dims, shape, finals,
+                            solved)
     coords = {axis["name"]: _coordinate(axis, dim["name"])
               for dim in manifest["dimensions"] for axis in dim["axes"]}
     for name in [n for n in FORCING if n in coords]:  # swept: the coordinate holds it
@@ -117,7 +126,7 @@ def collect_sweep(folder: str | os.PathLike, maps: bool = False) -> xr.Dataset:
     if not any("hotspot_offset_reason" in r.attrs for r in finished):
         del data["hotspot_offset_reason"]  # standard cases, or files without the rule
     if maps:
-        maps_data = _point_maps(folder, results, dims, shape)
+        maps_data = _point_maps(folder, results, dims, shape, solved)
         if maps_data is not None:
             grid, fields = maps_data
             coords.update(grid)
@@ -126,16 +135,48 @@ def collect_sweep(folder: str | os.PathLike, maps: bool = False) -> xr.Dataset:
                       attrs=_table_attrs(manifest, data["run_status"].values, finished))
 
 
-def _forcing_inputs(base: dict, point: dict) -> dict:
-    """nightside_thickness_m and forcing_contrast of a point, from its configuration (so they
-    are known before it has run); NaN if the configuration is invalid."""
+def _point_config(base: dict, point: dict) -> ModelConfig | None:
+    """A point's configuration (the base with its parameters); None if it is invalid."""
     data = copy.deepcopy(base)
     for key, value in point["parameters"].items():
         section, _, name = key.partition(".")
         data.setdefault(section, {})[name] = value
     try:
-        config = ModelConfig.from_dict(data)
+        return ModelConfig.from_dict(data)
     except ConfigError:
+        return None
+
+
+def _solve_linear_points(results: dict, base: dict, maps: bool, progress: bool) -> dict:
+    """Solve, in this process, the linear points (``numerics.solver = "linear"``) that have no
+    run file: in a sweep they get none, since solving one takes milliseconds and its file
+    would take longer to write than the solve (issue 13). Their results replace the
+    ``missing`` ones in ``results``; returns index -> their maps (None without ``maps``)."""
+    todo = [(index, config) for index, (point, result) in results.items()
+            if result.status == MISSING
+            and (config := _point_config(base, point)) is not None
+            and config.numerics.solver == "linear"]
+    solved = {}
+    for index, config in tqdm(todo, unit="point", desc="linear points", disable=not progress,
+                              leave=False, dynamic_ncols=True):
+        point, _ = results[index]
+        try:
+            attrs, fields = solve_point(config, maps)
+        except ConfigError as err:  # refused (e.g. an eccentric orbit): a failed point
+            results[index] = (point, PointResult(FAILED, f"invalid configuration: {err}"))
+            continue
+        reason = ("linear steady state, solved when the table was made (numerics.solver = "
+                  "linear: no run file)")
+        results[index] = (point, PointResult(LINEAR, reason, attrs))
+        solved[index] = fields
+    return solved
+
+
+def _forcing_inputs(base: dict, point: dict) -> dict:
+    """nightside_thickness_m and forcing_contrast of a point, from its configuration (so they
+    are known before it has run); NaN if the configuration is invalid."""
+    config = _point_config(base, point)
+    if config is None:
         return dict.fromkeys(FORCING, np.nan)
     atm = config.atmosphere
     low, high = equilibrium_extremes(atm.mean_geopotential_m2_s2 / config.planet.gravity_m_s2,
@@ -144,8 +185,10 @@ def _forcing_inputs(base: dict, point: dict) -> dict:
             "forcing_contrast": atm.forcing_contrast}
 
 
-def _point_variables(results: dict, base: dict, dims: list, shape: tuple, finals: list) -> dict:
-    """The per-point variables (everything but the maps) of the table."""
+def _point_variables(results: dict, base: dict, dims: list, shape: tuple, finals: list,
+                     solved: dict) -> dict:
+    """The per-point variables (everything but the maps) of the table (``solved``: the
+    indices of the linear points solved here, which have no file)."""
     numbers = {name: np.full(shape, np.nan) for name in
                [*finals, "steady_state_reached", *RUN_NUMBERS, *FORCING]}
     strings = {name: np.full(shape, "", dtype=object) for name in
@@ -155,7 +198,7 @@ def _point_variables(results: dict, base: dict, dims: list, shape: tuple, finals
             numbers[name][index] = value
         strings["run_status"][index] = result.status
         strings["run_status_reason"][index] = result.reason
-        strings["run_file"][index] = point["file"]
+        strings["run_file"][index] = "" if index in solved else point["file"]
         if "steady_state_reached" in result.attrs:
             numbers["steady_state_reached"][index] = float(result.attrs["steady_state_reached"])
         if result.status not in FINISHED:
@@ -175,13 +218,13 @@ def _point_variables(results: dict, base: dict, dims: list, shape: tuple, finals
     return data
 
 
-def _point_maps(folder: Path, results: dict, dims: list, shape: tuple):
+def _point_maps(folder: Path, results: dict, dims: list, shape: tuple, solved: dict):
     """(lat/lon coordinates, h/u/v variables) of the finished points, or None if none."""
     fields, grid = None, None
     for index, (point, result) in results.items():
         if result.status not in FINISHED:
             continue
-        snapshot = _final_maps(folder / point["file"])
+        snapshot = solved[index] if solved.get(index) else _final_maps(folder / point["file"])
         if snapshot is None:
             continue
         if fields is None:
@@ -215,7 +258,7 @@ def _table_attrs(manifest: dict, status: np.ndarray, finished: list) -> dict:
                                                     sort_keys=True, allow_nan=True),
         "points_total": int(status.size),
         **{f"points_{s}": int((status == s).sum())
-           for s in ("complete", "steady", "failed", "missing")},
+           for s in STATUSES},
         **({"rotation_rate_s": rates.pop()} if len(rates) == 1 else {}),
         "final_values": "each point's time means over its own trailing steady-state window "
                         "(averaging_window_days long, ending at averaging_end_days; 0 days: "

@@ -15,6 +15,7 @@ from torrid.io.config import SECONDS_PER_DAY, ModelConfig
 from torrid.io.runfile import build_dataset, check_writable, write_atomic
 from torrid.physics.timestepping import COURANT_LIMIT, IMEXStepper
 from torrid.workflow.health import HealthProblem, check_step
+from torrid.workflow.linear_run import run_linear
 from torrid.workflow.output import (RunSummary, append_snapshot, output_coordinates,
                                     planet_attrs, relative_change, run_attrs, snapshot,
                                     to_output_grid)
@@ -213,7 +214,11 @@ def steady_criterion(model: Model) -> SteadyCriterion | None:
 
 def run_config(config: ModelConfig, progress: bool = True, restart: RestartStore | None = None,
                resume: bool = False) -> tuple[xr.Dataset, RunSummary]:
-    """Build and integrate the model of ``config`` (see :func:`integrate`)."""
+    """Build and integrate the model of ``config`` (see :func:`integrate`); with
+    ``numerics.solver = "linear"``, solve its linear steady state instead (no time loop, no
+    restart data: :mod:`torrid.workflow.linear_run`)."""
+    if config.numerics.solver == "linear":  # issue 13: the one dispatch on the solver
+        return run_linear(config)
     return integrate(build_model(config), progress=progress, restart=restart, resume=resume)
 
 

@@ -19,10 +19,11 @@ from torrid.physics.linear import LinearTerms
 from torrid.physics.orbit import Orbit, pseudo_synchronous_ratio
 from torrid.physics.processes import CASE, PLANET, Process, ProcessContext, build_processes
 from torrid.physics.regrid import FitNotConvergedError, fit_state
-from torrid.physics.state import GEOPOTENTIAL
+from torrid.physics.state import DIVERGENCE, GEOPOTENTIAL, VORTICITY
 from torrid.physics.tendencies import Dynamics
 from torrid.physics.timestepping import IMEXStepper, automatic_time_step
 from torrid.physics.transforms import Transforms
+from torrid.workflow.linear_state import solve_linear
 
 
 @dataclass(frozen=True, eq=False)
@@ -175,6 +176,18 @@ def _from_file(config: ModelConfig, transforms: Transforms, start: _Start):
                                       reference_speed_m_s=max(speed, start.reference_speed_m_s))
 
 
+def _linear_start(config: ModelConfig, transforms: Transforms, processes, dynamics, linear,
+                  start: _Start):
+    """The linear steady state as the initial state (``run.initial_state = "linear"``), and
+    the start with its reference speed raised to the state's largest wind."""
+    solution = solve_linear(config, "run.initial_state", transforms, processes, dynamics,
+                            linear, start.rotation_rate_s, start.orbit)
+    winds = transforms.winds(solution.state[VORTICITY], solution.state[DIVERGENCE])
+    speed = float(np.sqrt((winds**2).sum(axis=0)).max())
+    return solution.state, dataclasses.replace(
+        start, reference_speed_m_s=max(speed, start.reference_speed_m_s))
+
+
 def build_model(config: ModelConfig) -> Model:
     """Build the model of ``config`` with its initial state."""
     grid = SpectralGrid(config.numerics.truncation)
@@ -198,6 +211,8 @@ def build_model(config: ModelConfig) -> Model:
     linear = LinearTerms.from_rates(l * (l + 1) / config.planet.radius_m**2,
                                     start.mean_geopotential,
                                     [p.implicit_rates() for p in processes])
+    if config.run.initial_state == "linear":  # issue 13: warm start from the linear steady state
+        state, start = _linear_start(config, transforms, processes, dynamics, linear, start)
     limits = tuple(limit for p in processes if (limit := p.max_time_step_s()) is not None)
     dt, steps_per_output = choose_time_step(config, start.reference_speed_m_s, limits)
     stepper = IMEXStepper(dynamics, linear, dt, state.shape)

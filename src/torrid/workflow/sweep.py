@@ -8,7 +8,9 @@
    unless ``retry_failed``): so rerunning after an interruption, even a kill -9, runs only
    what is left; files are renamed into place when whole, so a killed point leaves none;
 3. runs the rest in worker processes (``workers``, spawned, one thread each) or on an existing
-   dask.distributed cluster (``scheduler``), with a progress bar over the points;
+   dask.distributed cluster (``scheduler``), with a progress bar over the points; linear
+   points (``numerics.solver = "linear"``) are not sent anywhere: the table solves them in
+   this process, in milliseconds each, and they get no file;
 4. rebuilds the sweep table ``<folder>/<name>-table.nc`` from the folder (replacing the old
    table: it is derived from the point files, which are never replaced).
 
@@ -30,7 +32,8 @@ from pathlib import Path
 
 from tqdm.auto import tqdm
 
-from torrid.io.pointfile import FAILED, FINISHED, canonical_json, read_point, write_failure_record
+from torrid.io.pointfile import (FAILED, FINISHED, STATUSES, canonical_json, read_point,
+                                 write_failure_record)
 from torrid.io.sweepspec import SweepPoint, SweepSpec
 from torrid.io.sweepmanifest import manifest_data, write_manifest
 from torrid.workflow import collect
@@ -55,7 +58,7 @@ class SweepOutcome:
     table_path : Path or None
         The sweep table written at the end.
     counts : dict
-        Points by status at the end (complete, steady, failed, missing).
+        Points by status at the end (complete, steady, linear, failed, missing).
     ran : int
         Points run now.
     skipped : int
@@ -130,22 +133,25 @@ class Plan:
     points: list
     to_run: list
     results: dict  # identifier -> PointResult of the points not to run
+    linear: list = field(default_factory=list)  # linear points, solved by collect (issue 13)
 
 
 def plan_sweep(spec: SweepSpec, folder: Path, retry_failed: bool = False,
                points: list[SweepPoint] | None = None) -> Plan:
     """Sort the points of ``spec`` into those to run and those with a usable file."""
     points = spec.points() if points is None else points
-    to_run, results = [], {}
+    to_run, results, linear = [], {}, []
     for point in points:
         result = read_point(folder / point.file_name, point.identifier)
         if point.config is None:  # invalid configuration: a record, nothing to run
             results[point.identifier] = result
         elif result.status in FINISHED or (result.status == FAILED and not retry_failed):
             results[point.identifier] = result
+        elif point.config.numerics.solver == "linear":
+            linear.append(point)  # solved when the table is collected: no worker, no file
         else:
             to_run.append(point)
-    return Plan(points, to_run, results)
+    return Plan(points, to_run, results, linear)
 
 
 def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | None = None,
@@ -191,13 +197,12 @@ def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | N
         outcome.skipped = len(plan.results)
         if plan.to_run:
             outcome.errors = _execute(plan, folder, workers, scheduler, progress)
-        outcome.ran = len(plan.to_run) - len(outcome.errors)
-        table = collect.collect_sweep(folder, maps=maps)
+        outcome.ran = len(plan.to_run) - len(outcome.errors) + len(plan.linear)
+        table = collect.collect_sweep(folder, maps=maps, progress=progress)
         outcome.table_path = collect.write_table(table, collect.table_path(folder, spec.name),
                                                  overwrite=True)
     status = table["run_status"].values.ravel()
-    outcome.counts = {s: int((status == s).sum()) for s in ("complete", "steady", "failed",
-                                                            "missing")}
+    outcome.counts = {s: int((status == s).sum()) for s in STATUSES}
     reasons = table["run_status_reason"].values.ravel()
     files = table["run_file"].values.ravel()
     outcome.failures = [(str(f), str(r)) for f, r, s in zip(files, reasons, status)

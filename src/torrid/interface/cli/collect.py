@@ -16,7 +16,8 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
                     "every point (hotspot_offset, day_night_contrast, equatorial_zonal_wind, "
                     "...), steady_state_reached, steady_state_time_days, run_status, "
                     "run_status_reason and run_file. Points without a run file yet appear as "
-                    "missing (NaN); failed points have their reason and NaN diagnostics. Open "
+                    "missing (NaN), except linear ones (numerics.solver = linear), which are "
+                    "solved here (milliseconds each); failed points have their reason and NaN diagnostics. Open "
                     "it with xarray.open_dataset; draw it with torrid plot.")
     p.add_argument("folder", type=Path, metavar="FOLDER", help="the sweep folder")
     p.add_argument("-o", "--output", type=Path, default=None, metavar="FILE.nc",
@@ -35,7 +36,7 @@ def handle(args: argparse.Namespace) -> int:
     manifest = read_manifest(args.folder)
     output = args.output or table_path(args.folder, manifest["torrid_sweep"])
     check_writable(output, args.overwrite)  # refuse before reading every point
-    table = collect_sweep(args.folder, maps=args.maps)
+    table = collect_sweep(args.folder, maps=args.maps, progress=True)
     write_table(table, output, overwrite=args.overwrite)
     status = table["run_status"].values.ravel()
     for reason, state in zip(table["run_status_reason"].values.ravel(), status):
@@ -45,6 +46,7 @@ def handle(args: argparse.Namespace) -> int:
                   "to redo the point)", file=sys.stderr)
     a = table.attrs
     print(f"sweep {a['torrid_sweep']}: {a['points_total']} points: "
-          f"{a['points_complete'] + a['points_steady']} done, {a['points_failed']} failed, "
+          f"{a['points_complete'] + a['points_steady'] + a['points_linear']} done, "
+          f"{a['points_failed']} failed, "
           f"{a['points_missing']} missing -> {output}", file=sys.stdout)
     return 0

@@ -33,7 +33,9 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
                     "standard case: a lon-lat map of one variable (RUN-<variable>.png). For a "
                     "sweep table (torrid sweep, torrid collect): hotspot offset, day-night "
                     "contrast and jet speed over the two main swept axes (TABLE.png) and, if "
-                    "it has maps, the thickness map of every point (TABLE-maps.png).")
+                    "it has maps, the thickness map of every point (TABLE-maps.png); if it sweeps "
+                    "numerics.solver over both solvers, linear against nonlinear "
+                    "(TABLE-solvers.png).")
     p.add_argument("run_file", type=Path, metavar="RUN.nc", help="run file written by torrid run, or a sweep table")
     p.add_argument("--variable", default=None,
                    help="draw this variable as a plain map: h, u, v, vorticity, divergence "
@@ -68,6 +70,7 @@ def handle(args: argparse.Namespace) -> int:
                              "to run files only")
         images = plot_sweep_file(args.run_file, args.output, overwrite=args.overwrite,
                                  quantity=quantity, scale=args.scale, settings=settings)
+        images += _solver_comparison(args.run_file, images[0], args.overwrite)
         print(f"wrote {' and '.join(map(str, images))}", file=sys.stdout)
         return 0
     ds = read_run(args.run_file)
@@ -90,3 +93,18 @@ def handle(args: argparse.Namespace) -> int:
                       settings=settings)
     print(f"wrote {image} and {spinup}", file=sys.stdout)
     return 0
+
+
+def _solver_comparison(table_path: Path, image: Path, overwrite: bool) -> list[Path]:
+    """``<stem>-solvers.png`` beside the diagnostics image, for a table that sweeps
+    numerics.solver over both solvers (linear against nonlinear, issue 13); else nothing."""
+    import xarray as xr
+
+    from torrid.interface.solver_plots import plot_solver_comparison, solver_dimension
+
+    with xr.open_dataset(table_path, engine="netcdf4") as ds:
+        table = ds.load()
+    if solver_dimension(table) is None:
+        return []
+    out = image.with_name(f"{image.stem}-solvers.png")
+    return [plot_solver_comparison(table, out, overwrite=overwrite)]

@@ -28,6 +28,8 @@ OPTIONS = {
     "numerics.time_step_s": ("--time-step", "SECONDS", ""),
     "numerics.courant_number": ("--courant", "C", ""),
     "numerics.threads": ("--threads", "N", ""),
+    "numerics.solver": ("--solver", "NAME", ""),
+    "run.initial_state": ("--initial-state", "STATE", ""),
     "run.initial_fields": ("--initial", "FIELDS.nc", "start from h, u, v in this file (any "
                                                      "lon-lat grid; a run file's last output "
                                                      "will do), fitted onto the model's "
@@ -140,8 +142,11 @@ def handle(args: argparse.Namespace) -> int:
 def planet_line(ds) -> str:
     """One line of the headline numbers of a planet run."""
     a = ds.attrs
-    steady = (f"steady at day {a['steady_state_time_days']:g}" if a["steady_state_reached"]
-              else "not steady by the end")
+    if a.get("run_status") == "linear":
+        steady = "the linear steady state (numerics.solver = linear)"
+    else:
+        steady = (f"steady at day {a['steady_state_time_days']:g}" if a["steady_state_reached"]
+                  else "not steady by the end")
     return (f"{hotspot_phrase(a)}, day-night contrast "
             f"{a['final_day_night_contrast']:.2f}, equatorial wind "
             f"{a['final_equatorial_zonal_wind'] / 1e3:+.2f} km/s, max wind "

@@ -69,7 +69,8 @@ def handle(args: argparse.Namespace) -> int:
         plan = plan_sweep(spec, spec.folder, args.retry_failed)
         invalid = [p for p in plan.points if p.config is None]
         print(f"sweep {spec.name}: {len(plan.points)} points ({shape}) in {spec.folder}; "
-              f"{len(plan.to_run)} to run, {len(plan.results) - len(invalid)} done or failed, "
+              f"{len(plan.to_run)} to run, {len(plan.linear)} linear (solved with the table), "
+              f"{len(plan.results) - len(invalid)} done or failed, "
               f"{len(invalid)} with an invalid configuration", file=sys.stdout)
         for point in invalid[:MAX_FAILURES_SHOWN]:
             print(f"  invalid: {point.file_name}: {point.error}", file=sys.stdout)
@@ -79,7 +80,8 @@ def handle(args: argparse.Namespace) -> int:
                         progress=not args.quiet)
     c = outcome.counts
     print(f"sweep {spec.name}: {sum(c.values())} points ({shape}): "
-          f"{c['complete'] + c['steady']} done ({c['steady']} steady), {c['failed']} failed, "
+          f"{c['complete'] + c['steady'] + c['linear']} done ({c['steady']} steady, "
+          f"{c['linear']} linear), {c['failed']} failed, "
           f"{c['missing']} missing; ran {outcome.ran} now, {outcome.skipped} had results "
           f"-> {outcome.table_path}", file=sys.stdout)
     for name, reason in outcome.failures[:MAX_FAILURES_SHOWN]:
