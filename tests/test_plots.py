@@ -129,6 +129,24 @@ def test_maps_grid_has_arrows_marks_and_a_choice_of_colour_scales():
     assert max(text.get_fontsize() for ax in maps for text in [ax.title]) >= 10
 
 
+def test_maps_grid_centres_each_panel_on_its_star():
+    """On an eccentric orbit the star of the last output is not at grid longitude 0: the
+    panel is drawn about it, so the star mark at 0 sits on the forced maximum."""
+    table = synthetic_table(3, 2)
+    lon = np.radians(table["lon"].values - 60.0)
+    la = np.radians(table["lat"].values)[:, None]
+    table["h"].values[...] = H_M * (1 + DH * np.maximum(0, np.cos(la) * np.cos(lon)))
+    table["map_substellar_longitude"] = (table["run_status"].dims, np.full((3, 2), 60.0))
+    fig = plot_sweep_maps(table, arrows=False)
+    ax = next(ax for ax in fig.axes if any(isinstance(c, QuadMesh) for c in ax.collections)
+              and ax.get_label() != "<colorbar>")
+    mesh = ax.collections[0]
+    values = mesh.get_array().reshape(table.sizes["lat"], table.sizes["lon"])
+    centres = mesh.get_coordinates()[0, :, 0]
+    centres = (centres[:-1] + centres[1:]) / 2
+    assert abs(centres[np.argmax(values[table.sizes["lat"] // 2])]) < 20.0
+
+
 def test_maps_as_temperature_use_the_phase_curves_map():
     table = synthetic_table(3, 2)
     settings = ObserverSettings(night_temperature=1000.0, day_temperature=2000.0)

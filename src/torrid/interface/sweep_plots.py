@@ -284,10 +284,11 @@ def plot_sweep_maps(table: xr.Dataset, path: str | os.PathLike | None = None,
                     ax.text(0.5, 0.5, status, ha="center", va="center", transform=ax.transAxes,
                             color="red" if status == "failed" else "grey", fontsize=12)
                     continue
-                values = field.isel(select).values
+                lon, (values, u, v) = _about_star(held["lon"].values, cell, (
+                    field.isel(select).values, cell["u"].values, cell["v"].values))
                 limits = shared if scale == "shared" else colour_limits(
                     values, float(span.isel(select)))
-                mesh = ax.pcolormesh(held["lon"], held["lat"], values, shading="auto",
+                mesh = ax.pcolormesh(lon, held["lat"], values, shading="auto",
                                      cmap="inferno", vmin=limits[0], vmax=limits[1])
                 if scale == "panel":
                     bar = fig.colorbar(mesh, ax=ax, pad=0.01, fraction=0.06, aspect=12)
@@ -295,8 +296,7 @@ def plot_sweep_maps(table: xr.Dataset, path: str | os.PathLike | None = None,
                     bar.locator = plt.MaxNLocator(3)
                     bar.update_ticks()
                 if arrows and speed_max > 0:
-                    quiver = _arrows(ax, held["lon"].values, held["lat"].values,
-                                     cell["u"].values, cell["v"].values, speed_max)
+                    quiver = _arrows(ax, lon, held["lat"].values, u, v, speed_max)
                 _marks(ax, cell, bool(undefined.isel(select)), status)
         _map_axes(fig, axes, held)
         if mesh is not None and scale == "shared":
@@ -314,6 +314,17 @@ def plot_sweep_maps(table: xr.Dataset, path: str | os.PathLike | None = None,
     if path is None:
         return fig
     return save_figure(fig, path, overwrite)
+
+
+def _about_star(lon: np.ndarray, cell: xr.Dataset, maps) -> tuple[np.ndarray, list]:
+    """Longitudes east of the star at the map's time, in [-180, 180) and ascending, and the
+    maps' columns in that order (the star moves on eccentric or asynchronous orbits; tables
+    without ``map_substellar_longitude`` had it at 0)."""
+    star = (float(cell["map_substellar_longitude"]) if "map_substellar_longitude" in cell
+            else 0.0)
+    relative = (lon - (star if np.isfinite(star) else 0.0) + 180.0) % 360.0 - 180.0
+    order = np.argsort(relative)
+    return relative[order], [m[..., order] for m in maps]
 
 
 def _arrows(ax, lon, lat, u, v, speed_max):

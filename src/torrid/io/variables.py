@@ -213,6 +213,10 @@ SWEEP_VARIABLES: dict[str, Variable] = {
                       f"{VARIABLES[name].long_name}, at the last output",
                       VARIABLES[name].standard_name)
        for name in SWEEP_MAPS},
+    "map_substellar_longitude": Variable(_P, "degree", "substellar longitude (east positive) "
+                                                       "at the last output, where the maps' "
+                                                       "star was (0 on circular synchronous "
+                                                       "orbits)"),
 }
 
 

@@ -48,6 +48,8 @@ from torrid.physics.processes.relaxation import equilibrium_extremes
 from torrid.workflow.linear_run import solve_point
 
 MAP_VARIABLES = SWEEP_MAPS
+#: The run-file diagnostic that says where the star was at a map's time.
+SUBSTELLAR = "substellar_longitude"
 #: Inputs of each point's forcing that become variables over the sweep (the thickness ->
 #: temperature scaling of a phase curve), unless swept (then the coordinate holds them).
 FORCING = ("nightside_thickness_m", "substellar_thickness_m", "forcing_contrast")
@@ -82,8 +84,10 @@ def _final_maps(path: Path) -> dict | None:
     with xr.open_dataset(path, engine="netcdf4") as ds:
         if not all(name in ds for name in MAP_VARIABLES):
             return None
-        last = ds[list(MAP_VARIABLES)].isel(time=-1).load()
+        names = list(MAP_VARIABLES) + [n for n in (SUBSTELLAR,) if n in ds]
+        last = ds[names].isel(time=-1).load()
     return {"lat": last["lat"].values, "lon": last["lon"].values,
+            SUBSTELLAR: float(last[SUBSTELLAR]) if SUBSTELLAR in last else 0.0,
             **{name: last[name].values for name in MAP_VARIABLES}}
 
 
@@ -230,17 +234,21 @@ def _point_maps(folder: Path, results: dict, dims: list, shape: tuple, solved: d
         if fields is None:
             grid = (snapshot["lat"], snapshot["lon"])
             fields = {n: np.full(shape + snapshot["h"].shape, np.nan) for n in MAP_VARIABLES}
+            star = np.full(shape, np.nan)
         elif snapshot["h"].shape != fields["h"].shape[len(shape):]:
             raise ValueError(f"{folder}: --maps needs every point on one grid, but "
                              f"{point['file']} has {snapshot['h'].shape[0]} latitudes, "
                              f"not {fields['h'].shape[len(shape)]} (truncation swept?)")
         for name in MAP_VARIABLES:
             fields[name][index] = snapshot[name]
+        star[index] = snapshot.get(SUBSTELLAR, 0.0)
     if fields is None:
         return None
     coords = {"lat": SWEEP_VARIABLES["lat"].variable(grid[0]),
               "lon": SWEEP_VARIABLES["lon"].variable(grid[1])}
     data = {name: SWEEP_VARIABLES[name].variable(fields[name], dims) for name in MAP_VARIABLES}
+    data["map_substellar_longitude"] = SWEEP_VARIABLES["map_substellar_longitude"].variable(
+        star, dims)
     return coords, data
 
 
