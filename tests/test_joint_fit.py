@@ -266,3 +266,16 @@ def test_bad_observation_files_give_one_line(table, tmp_path, extra, fragment):
     toml.write_text("[[curve]]\nfile = \"band0.csv\"\n")
     with pytest.raises(ObservationError, match="curve 1: give band"):
         read_observation(toml)
+
+
+def test_the_python_api_fits_an_observation_file_and_a_csv(table, tmp_path):
+    import torrid
+
+    toml, table_path = write_observation(tmp_path, table)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", TorridWarning)
+        shape = torrid.fit(toml, table_path, temperatures="shape")
+        single = torrid.fit(tmp_path / "band0.csv", table_path, ASSUMED, temperatures="free")
+    assert shape.attrs["temperatures"] == "shape" and shape.sizes["curve"] == 2
+    assert shape["shape_amplitude"].dims == ("curve", *DIMS)
+    assert single.sizes["curve"] == 1 and "best_night_temperature_K" in single.attrs

@@ -46,7 +46,7 @@ class CurveModel:
     Attributes
     ----------
     observed : ObservedCurve
-        The measurement (phases already shifted by the curve's phase shift).
+        The measurement (its own phases; the kernels include the curve's phase shift).
     band : Band
         Its band quadrature.
     kernels : ndarray (npoint, nobs, NODES)
