@@ -10,7 +10,7 @@ time covers the emcee run (32 walkers, steps chosen so that acceptance x walkers
 under 60 s each.
 
     OMP_NUM_THREADS=1 python benchmarks/bench_fit.py
-    OMP_NUM_THREADS=1 python benchmarks/bench_fit.py --repeats 5 --steps 600
+    OMP_NUM_THREADS=1 python benchmarks/bench_fit.py --repeats 5 --steps 3000
 """
 
 from __future__ import annotations
@@ -62,7 +62,7 @@ def observation(seed: int = 1) -> Observation:
 def main() -> None:
     parser = argparse.ArgumentParser(description=__doc__.splitlines()[0])
     parser.add_argument("--repeats", type=int, default=3)
-    parser.add_argument("--steps", type=int, default=500, help="steps per walker")
+    parser.add_argument("--steps", type=int, default=2000, help="steps per walker")
     args = parser.parse_args()
     warnings.simplefilter("ignore", TorridWarning)
     table = family_table(np.logspace(-1, 1, 6), np.logspace(-1, 2, 6))

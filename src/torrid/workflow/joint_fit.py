@@ -30,7 +30,7 @@ from torrid.io.variables import FIT_VARIABLES
 from torrid.workflow import fit_checks
 from torrid.workflow.fit import DELTA_CHI2, FitError
 from torrid.workflow.fit_axes import AxisCoordinate
-from torrid.workflow.fit_model import curve_models
+from torrid.workflow.fit_model import curve_models, single_thread
 
 MODES = ("fixed", "free", "shape")
 
@@ -86,6 +86,11 @@ def joint_fit(table: xr.Dataset, observation: Observation, temperatures: str = "
         and ``best_day_temperature_K`` with free end points, ``estimate_<dim>``) and the
         context a posterior needs (``models``, ``axes``, ``plane``, ``bounds``, ``assumed``).
     """
+    with single_thread():
+        return _joint_fit(table, observation, temperatures, source)
+
+
+def _joint_fit(table, observation, temperatures, source):
     from torrid.workflow.phase import end_temperatures
 
     if temperatures not in MODES:

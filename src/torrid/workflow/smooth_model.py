@@ -20,14 +20,33 @@ import numpy as np
 from torrid.workflow.fit_axes import AxisCoordinate
 
 
+class CardinalSplines:
+    """The cardinal cubic splines of ``size`` grid points: weights (len(u), size) of the
+    interpolant through the grid values at fractional indices u."""
+
+    def __init__(self, size: int):
+        from scipy.interpolate import CubicSpline
+
+        self.size = size
+        self._spline = (CubicSpline(np.arange(size, dtype=float), np.eye(size), axis=0)
+                        if size > 1 else None)
+
+    def __call__(self, u) -> np.ndarray:
+        u = np.atleast_1d(np.asarray(u, float))
+        if self._spline is None:
+            return np.ones((u.size, 1))
+        return self._spline(u)
+
+
 def cardinal_weights(size: int, u) -> np.ndarray:
     """Weights (len(u), size) of the cubic-spline interpolant through the grid values at u."""
-    from scipy.interpolate import CubicSpline
+    return CardinalSplines(size)(u)
 
-    u = np.atleast_1d(np.asarray(u, float))
-    if size == 1:
-        return np.ones((u.size, 1))
-    return CubicSpline(np.arange(size, dtype=float), np.eye(size), axis=0)(u)
+
+def _contract(values: np.ndarray, c1: np.ndarray, c2: np.ndarray) -> np.ndarray:
+    """sum_xy values[r, x, y, o] c1[r, x] c2[r, y] -> (r, o)."""
+    partial = np.einsum("rxyo,rx->ryo", values, c1)
+    return np.einsum("ryo,ry->ro", partial, c2)
 
 
 def shape_profile(y, w, model):
@@ -77,6 +96,7 @@ class SmoothModel:
                              "the smooth model needs every point")
         self._fixed_flux = [m.scale * (k @ m.node_radiance(*self.fixed))
                             for m, k in zip(models, self._kernels)]  # (n1, n2, nobs)
+        self._splines = [CardinalSplines(a.size) for a in axes]
 
     @property
     def lower(self) -> np.ndarray:
@@ -101,18 +121,17 @@ class SmoothModel:
     def curves(self, theta: np.ndarray) -> list[np.ndarray]:
         """Model flux (rows, nobs) of each curve at ``theta`` (before shape profiling)."""
         theta = np.atleast_2d(np.asarray(theta, float))
-        c1 = cardinal_weights(self.axes[0].size, theta[:, 0])
-        c2 = cardinal_weights(self.axes[1].size, theta[:, 1])
+        c1, c2 = self._splines[0](theta[:, 0]), self._splines[1](theta[:, 1])
         out = []
         for model, kernels, fixed_flux in zip(self.models, self._kernels, self._fixed_flux):
             if self.mode == "free":
                 radiance = model.node_radiance(theta[:, 2], theta[:, 3])  # (rows, K)
                 n1, n2, nobs, nk = kernels.shape
-                flux = model.scale * (kernels.reshape(-1, nk) @ radiance.T)
-                flux = flux.reshape(n1, n2, nobs, -1)
-                out.append(np.einsum("xyor,rx,ry->ro", flux, c1, c2, optimize=True))
+                flux = model.scale * (radiance @ kernels.reshape(-1, nk).T)  # (rows, n1 n2 nobs)
+                out.append(_contract(flux.reshape(-1, n1, n2, nobs), c1, c2))
             else:
-                out.append(np.einsum("xyo,rx,ry->ro", fixed_flux, c1, c2, optimize=True))
+                out.append((c1 @ fixed_flux.reshape(n1 := fixed_flux.shape[0], -1)).reshape(
+                    -1, fixed_flux.shape[1], fixed_flux.shape[2]).__mul__(c2[:, :, None]).sum(1))
         return out
 
     def chi_square(self, theta: np.ndarray) -> np.ndarray:
