@@ -46,7 +46,7 @@ OBSERVATION_NOISE_PPM = 15.0
 DEMO_BANDS = ((3.0, 4.0), (4.0, 5.0))
 TRUE_END_POINT_FACTORS = (0.9, 1.1)
 #: Posterior steps per walker (32 walkers): enough for 50 autocorrelation times here.
-POSTERIOR_STEPS = 4000
+POSTERIOR_STEPS = 5000
 
 
 def truth_index(sizes) -> tuple[int, ...]:

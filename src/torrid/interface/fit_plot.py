@@ -11,7 +11,7 @@ import numpy as np
 import xarray as xr
 from matplotlib.colors import LogNorm
 
-from torrid.interface.axes_style import figure_style
+from torrid.interface.axes_style import coordinate_label, figure_style
 from torrid.interface.plots import plt, save_figure
 from torrid.workflow.fit import DELTA_CHI2, axis_transform
 
@@ -39,7 +39,7 @@ def plot_fit(fit: xr.Dataset, path: str | os.PathLike | None = None, overwrite: 
         return _plot_fit(fit, path, overwrite)
 
 
-def _chi_map(fig, ax, fit, delta, title):
+def _chi_map(fig, ax, fit, delta, title, marks: bool = True):
     dims = list(delta.dims)
     if len(dims) >= 2:
         plane = delta.isel({d: int(np.argmin(np.abs(delta[d].values - fit.attrs[f"best_{d}"])))
@@ -54,10 +54,11 @@ def _chi_map(fig, ax, fit, delta, title):
             ax.clabel(lines, fmt={levels[0]: "68 %", levels[1]: "95 %"}, fontsize=8)
         best = np.unravel_index(int(np.nanargmin(plane.values)), plane.shape)
         ax.plot(xv[best[1]], yv[best[0]], "r*", ms=14, label="best grid point")
-        if f"estimate_{dims[0]}" in fit.attrs and xlabels is None and ylabels is None:
+        marks = marks and xlabels is None and ylabels is None
+        if f"estimate_{dims[0]}" in fit.attrs and marks:
             ax.plot(fit.attrs[f"estimate_{dims[0]}"], fit.attrs[f"estimate_{dims[1]}"], "wx",
                     ms=10, mew=2, label="interpolated estimate")
-        if f"posterior_median_{dims[0]}" in fit.attrs and xlabels is None and ylabels is None:
+        if f"posterior_median_{dims[0]}" in fit.attrs and marks:
             ax.errorbar(fit.attrs[f"posterior_median_{dims[0]}"],
                         fit.attrs[f"posterior_median_{dims[1]}"],
                         xerr=[[fit.attrs[f"posterior_median_{dims[0]}"]
@@ -76,8 +77,8 @@ def _chi_map(fig, ax, fit, delta, title):
             ax.set_xticks(xv, xlabels)
         if ylabels is not None:
             ax.set_yticks(yv, ylabels)
-        ax.set_xlabel(dims[0].replace("_", " "))
-        ax.set_ylabel(dims[1].replace("_", " "))
+        ax.set_xlabel(coordinate_label(delta[dims[0]]))
+        ax.set_ylabel(coordinate_label(delta[dims[1]]))
         ax.legend(loc="lower right", fontsize=8)
     else:
         ax.plot(delta[dims[0]], delta, "o-")
@@ -101,7 +102,8 @@ def _plot_fit(fit, path, overwrite):
         chi = fit["chi_square_fixed_temperatures"]
         _chi_map(fig, axes[1], fit, chi - chi.min(),
                  f"end points fixed at {fit.attrs['assumed_night_temperature_K']:.0f} K, "
-                 f"{fit.attrs['assumed_day_temperature_K']:.0f} K (min {float(chi.min()):.1f})")
+                 f"{fit.attrs['assumed_day_temperature_K']:.0f} K (min {float(chi.min()):.1f})",
+                 marks=False)
     right = axes[-1]
     if "best_curve_flux_ratio" in fit:
         names = fit.attrs.get("curves", "").split("; ")
