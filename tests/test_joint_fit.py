@@ -291,3 +291,20 @@ def test_the_python_api_fits_an_observation_file_and_a_csv(table, tmp_path):
     assert shape.attrs["temperatures"] == "shape" and shape.sizes["curve"] == 2
     assert shape["shape_amplitude"].dims == ("curve", *DIMS)
     assert single.sizes["curve"] == 1 and "best_night_temperature_K" in single.attrs
+
+
+def test_shape_only_posterior_samples_the_swept_parameters_only(table):
+    # shape mode: the offsets and amplitudes are profiled inside the likelihood, so the
+    # sampled parameters are the two swept ones; the fixed-temperature chi-square at grid
+    # points equals the smooth model's there (cubic splines interpolate: Press et al. 2007).
+    observation = injected((0.7, 3.0, 900.0, 2100.0), seed=6)
+    (fit, context), _ = quiet(joint_fit, table, observation, "shape")
+    model = smooth_model(table, context)
+    assert model.names == DIMS
+    i, j = (int(np.flatnonzero(a.order == context["best_index"][a.name])[0])
+            for a in model.axes)
+    assert model.chi_square(np.array([[i, j]], float))[0] == pytest.approx(
+        fit.attrs["chi_square_min"], rel=1e-9)
+    posterior, _ = quiet(sample, model, np.array([i, j], float), 40,
+                         SamplerSettings(walkers=8), progress=False)
+    assert posterior.samples.shape[1] == 2 and 0 <= posterior.acceptance <= 1
