@@ -11,33 +11,36 @@ sweep) to keep it working; the committed images come from the full demo (T21, 4 
 from __future__ import annotations
 
 import argparse
+import shutil
 from pathlib import Path
 
 import xarray as xr
 
 import torrid
-from torrid.interface.demo import DEMO_SWEEP, TRUTH_INDEX, run_demo
+from torrid.interface.demo import DEMO_SWEEP, POSTERIOR_STEPS, run_demo, truth_index
 
 HERE = Path(__file__).parent
 #: file name of each README figure
 FIGURES = {"sweep": "demo-sweep.png", "maps": "demo-maps.png", "phase": "demo-phase.png",
-           "fit": "demo-fit.png"}
+           "fit": "demo-fit.png", "posterior": "demo-posterior.png"}
 DPI = 100
 
 
 def make_figures(folder: Path, output: Path, sweep_text: str = DEMO_SWEEP,
-                 progress: bool = True) -> dict[str, Path]:
+                 progress: bool = True, posterior_steps: int = POSTERIOR_STEPS) -> dict[str, Path]:
     """Run the demo into ``folder`` if it has not run there, then draw the figures into
-    ``output``; returns the images by role."""
+    ``output``; returns the images by role. The posterior's corner plot is the demo's own
+    (drawn by ``torrid.plot_posterior``; the sample itself is not kept in the fit file)."""
     if not (folder / "demo-fit.nc").exists():
-        run_demo(folder, sweep_text=sweep_text, progress=progress, overwrite=True)
+        run_demo(folder, sweep_text=sweep_text, progress=progress, overwrite=True,
+                 posterior_steps=posterior_steps)
     with xr.open_dataset(folder / "demo-table.nc") as ds:
         table = ds.load()
     with xr.open_dataset(folder / "demo-fit.nc") as ds:
         fit = ds.load()
     curves = table.torrid.phase_curve()
     dims = [d for d in curves["flux_ratio"].dims if d != "phase"]
-    truth = {d: min(i, curves.sizes[d] - 1) for d, i in zip(dims, TRUTH_INDEX)}
+    truth = dict(zip(dims, truth_index([curves.sizes[d] for d in dims])))
     output.mkdir(parents=True, exist_ok=True)
     figures = {
         "sweep": torrid.plot_sweep_diagnostics(table),
@@ -45,7 +48,8 @@ def make_figures(folder: Path, output: Path, sweep_text: str = DEMO_SWEEP,
         "phase": torrid.plot_phase_curve(curves.isel(truth)),
         "fit": torrid.plot_fit(fit),
     }
-    written = {}
+    written = {"posterior": output / FIGURES["posterior"]}
+    shutil.copyfile(folder / "demo-fit-posterior.png", written["posterior"])
     for role, figure in figures.items():
         path = output / FIGURES[role]
         figure.savefig(path, dpi=DPI, bbox_inches="tight")

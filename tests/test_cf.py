@@ -9,6 +9,7 @@ coordinates, time units with an epoch, a history attribute, and days that stay n
 """
 
 import json
+import warnings
 
 import netCDF4
 import numpy as np
@@ -21,6 +22,7 @@ from torrid.io.observed import write_observed_csv
 from torrid.io.phasefile import write_phase_netcdf
 from torrid.io.runfile import read_run
 from torrid.workflow.fit import fit_table, synthetic_observation
+from torrid.workflow.joint_fit import fit_observation
 
 SWEEP = """\
 [numerics]
@@ -64,6 +66,15 @@ def files(tmp_path_factory):
     write_observed_csv(synthetic_observation(curve, 20, 5.0), folder / "observed.csv")
     out["fit"] = folder / "fit.nc"
     fit_table(folder / "observed.csv", out["sweep"], None, output=out["fit"])
+    # the joint fit's file (issue 15): two bands, free end points, a brief posterior
+    (folder / "obs.toml").write_text(
+        "[posterior]\nwalkers = 12\n[[curve]]\nfile = \"observed.csv\"\nband = \"4.0-5.0\"\n"
+        "[[curve]]\nfile = \"observed.csv\"\nband = \"4.0-5.0\"\nphase_shift = 0.0\n")
+    out["fit_joint"] = folder / "fit-joint.nc"
+    with warnings.catch_warnings():  # a brief chain on a 2 x 2 grid: not converged
+        warnings.simplefilter("ignore", torrid.TorridWarning)
+        fit_observation(folder / "obs.toml", out["sweep"], temperatures="free",
+                        posterior_steps=20, output=out["fit_joint"], progress=False)
     return out
 
 
@@ -81,7 +92,8 @@ def checker_messages(path, tmp_path) -> dict[str, list[str]]:
             for level in ("high", "medium", "low")}
 
 
-@pytest.mark.parametrize("kind", ["run", "phase", "phase_eccentric", "sweep", "fit"])
+@pytest.mark.parametrize("kind", ["run", "phase", "phase_eccentric", "sweep", "fit",
+                                  "fit_joint"])
 def test_the_cf_checker_finds_no_error_and_no_warning(files, kind, tmp_path):
     messages = checker_messages(files[kind], tmp_path)
     print(f"\n{kind}: {json.dumps(messages, indent=1)}")
@@ -89,7 +101,7 @@ def test_the_cf_checker_finds_no_error_and_no_warning(files, kind, tmp_path):
     assert messages["medium"] == [], f"{kind}: CF warnings"
 
 
-@pytest.mark.parametrize("kind", ["run", "phase", "sweep", "fit"])
+@pytest.mark.parametrize("kind", ["run", "phase", "sweep", "fit", "fit_joint"])
 def test_coordinates_have_no_fill_value_and_files_a_history(files, kind):
     with netCDF4.Dataset(files[kind]) as nc:
         for name, var in nc.variables.items():

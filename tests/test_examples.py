@@ -5,11 +5,14 @@ import runpy
 import sys
 from pathlib import Path
 
+import warnings
+
 import numpy as np
 import pytest
 
 import torrid
 from torrid.interface.cli import main
+from torrid.meta import TorridWarning
 
 EXAMPLES = Path(__file__).parents[1] / "examples"
 BRIEF = ("numerics.truncation=21", "run.days=2", "run.output_interval_days=0.5")
@@ -82,10 +85,15 @@ log_range = [0.1, 10.0, 3]
 def test_demo_runs_the_whole_chain_briefly(tmp_path, capsys):
     from torrid.interface.demo import run_demo
 
-    files = run_demo(tmp_path / "demo", workers=1, sweep_text=SMALL_DEMO, progress=False)
+    with warnings.catch_warnings():  # a brief chain: its convergence warning is expected
+        warnings.filterwarnings("ignore", "posterior.*has not converged", TorridWarning)
+        files = run_demo(tmp_path / "demo", workers=1, sweep_text=SMALL_DEMO, progress=False,
+                         posterior_steps=150)
     out = capsys.readouterr().out
-    assert "INVENTED observation" in out and "[5/5]" in out
-    for key in ("phase_nc", "phase_png", "observation_csv", "fit_nc", "fit_png", "table"):
+    assert "INVENTED observation in two invented bands" in out and "[5/5]" in out
+    assert "posterior: night_temperature = " in out and "autocorrelation" in out
+    for key in ("phase_nc", "phase_png", "observation_toml", "observation_3_4_csv",
+                "observation_4_5_csv", "fit_nc", "fit_png", "fit_posterior_png", "table"):
         assert files[key].exists(), key
     assert files["recovered"]  # 15 ppm noise on 60 phases singles out the generating point
     with pytest.raises(FileExistsError, match="--overwrite"):

@@ -1,5 +1,8 @@
 """Fitting a measured phase curve with a sweep: chi-square, confidence regions, best point."""
 
+import re
+import warnings
+
 import numpy as np
 import pytest
 import xarray as xr
@@ -7,6 +10,9 @@ from scipy import stats
 
 from torrid.io.observed import ObservedDataError, read_observed_csv, write_observed_csv
 from torrid.io.observed import ObservedCurve
+from torrid.meta import TorridWarning
+from torrid.workflow.fit_axes import AxisCoordinate
+from torrid.workflow.fit_checks import chi_square_bounds
 from torrid.workflow.fit import (DELTA_CHI2, axis_transform, fit_sweep, interpolated_minimum,
                                  synthetic_observation)
 
@@ -45,7 +51,12 @@ def test_fit_recovers_the_generating_grid_point(truth):
                                    drag_timescale_days=truth[1])
     # noise 10 ppm on 50 points, far below the 20-100 ppm differences between neighbours
     observed = synthetic_observation(point, 50, noise_ppm=10.0, seed=3)
-    fit = fit_sweep(curves, observed)
+    on_edge = truth[0] in (0, 4) or truth[1] in (0, 3)
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        fit = fit_sweep(curves, observed)
+    edge = [str(w.message) for w in caught if "edge of the grid" in str(w.message)]
+    assert bool(edge) == on_edge and len(caught) == len(edge)
     assert fit.attrs["best_radiative_timescale_days"] == curves.radiative_timescale_days[truth[0]]
     assert fit.attrs["best_drag_timescale_days"] == curves.drag_timescale_days[truth[1]]
     assert bool(fit.within_68.isel(radiative_timescale_days=truth[0],
@@ -123,3 +134,91 @@ def test_python_api_sweep_then_fit(tmp_path):
     fit = torrid.fit(tmp_path / "obs.csv", tmp_path / "api" / "api-table.nc")
     assert fit.attrs["best_radiative_timescale_days"] == pytest.approx(1.0)
     assert fit.attrs["best_drag_timescale_days"] == 1.0
+
+
+# --- issue 11: sanity warnings and interpolation across inf ------------------------------------
+
+def test_a_curve_given_as_a_fraction_is_warned_about():
+    # Hot gas giant phase curves are tens to thousands of ppm; 1e-3 is a fraction (our limit:
+    # everything below 1 ppm, see torrid.workflow.fit_checks).
+    curves = _family()
+    observed = synthetic_observation(curves.flux_ratio.isel(radiative_timescale_days=2,
+                                                            drag_timescale_days=1), 30, 5.0)
+    fraction = ObservedCurve(observed.phase, observed.flux_ratio_ppm * 1e-6,
+                             observed.error_ppm * 1e-6, source="fraction.csv")
+    with warnings.catch_warnings(record=True) as got:
+        warnings.simplefilter("always")
+        fit_sweep(curves, fraction)
+    messages = [str(w.message) for w in got if issubclass(w.category, TorridWarning)]
+    assert any(re.search(r"fraction.csv: .*looks like a fraction.*ppm", m) for m in messages)
+    assert all("\n" not in m for m in messages)
+
+
+def test_reduced_chi_square_far_from_one_is_warned_about():
+    # 597 for 98 dof (the case of issue 11) lies far outside the central 99.73 % of the
+    # chi-square distribution (scipy.stats.chi2): 60-148 for 98 dof.
+    low, high = chi_square_bounds(98)
+    assert low == pytest.approx(stats.chi2.ppf(0.00135, 98)) and 55 < low < 65
+    assert high == pytest.approx(stats.chi2.ppf(0.99865, 98)) and 140 < high < 155
+    curves = _family()
+    point = curves.flux_ratio.isel(radiative_timescale_days=2, drag_timescale_days=1)
+    observed = synthetic_observation(point, 50, noise_ppm=10.0, seed=3)
+    understated = ObservedCurve(observed.phase, observed.flux_ratio_ppm, observed.error_ppm / 3)
+    with warnings.catch_warnings(record=True) as got:
+        warnings.simplefilter("always")
+        fit_sweep(curves, understated)
+    assert any(re.search(r"reduced chi-square .* outside .*99.73 %", str(w.message))
+               for w in got)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error")
+        fit_sweep(curves, observed)  # honest errors: no warning
+
+
+def test_no_estimate_is_said_on_screen_with_its_reason():
+    curves = _family().isel(drag_timescale_days=[1])
+    curves = curves.squeeze("drag_timescale_days", drop=True)
+    observed = synthetic_observation(curves.flux_ratio.isel(radiative_timescale_days=2), 30, 5.0)
+    with pytest.warns(TorridWarning, match="no interpolated estimate: the sweep has one swept"):
+        fit = fit_sweep(curves, observed)
+    assert "estimate_note" in fit.attrs
+    failed = _family()
+    failed["flux_ratio"][4, 3] = np.nan
+    with pytest.warns(TorridWarning, match="no interpolated estimate: some grid points"):
+        fit_sweep(failed, synthetic_observation(failed.flux_ratio.isel(
+            radiative_timescale_days=2, drag_timescale_days=1), 30, 5.0))
+
+
+def test_the_estimate_interpolates_across_inf_in_drag_rate():
+    # An axis ending in inf (no drag) is interpolated in the drag rate 1/tau (inf -> 0) in its
+    # last cell. Curves linear in the rate there are reproduced exactly by the bilinear
+    # interpolant, so a noise-free curve made at tau = 40 d (rate 0.025 /d, a quarter of the way
+    # from 1/10 to 0 ... i.e. u = 2.75) is found at 40 d.
+    axis = AxisCoordinate("drag_timescale_days", [1.0, 10.0, np.inf, 0.1])
+    assert list(axis.sorted_values) == [0.1, 1.0, 10.0, np.inf] and axis.log
+    assert axis.value(2.75) == pytest.approx(40.0) and axis.value(1.5) == pytest.approx(
+        10**0.5)
+    assert axis.index(40.0) == pytest.approx(2.75) and np.isinf(axis.value(3.0))
+    tau_rad = np.logspace(-1, 1, 3)
+    drag = np.array([0.1, 1.0, 10.0, np.inf])
+    rate_coord = np.array([0.0, 1.0, 2.0, 3.0])  # u of each drag value
+    phase = np.arange(120) / 120
+    r = np.log10(tau_rad)
+    amp = 200 + 30 * rate_coord[None, :] + 0 * r[:, None]
+    shift = 0.02 * r[:, None, None]  # the peak moves with tau_rad
+    flux = 600 + amp[..., None] * np.cos(2 * np.pi * (phase - 0.5 + shift))
+    curves = xr.Dataset({"flux_ratio": (("radiative_timescale_days", "drag_timescale_days",
+                                         "phase"), flux)},
+                        coords={"radiative_timescale_days": tau_rad,
+                                "drag_timescale_days": drag, "phase": phase})
+    obs_phase = (np.arange(40) + 0.5) / 40
+    truth_amp = 200 + 30 * 2.75
+    observed = ObservedCurve(obs_phase, 600 + truth_amp * np.cos(2 * np.pi * (obs_phase - 0.5))
+                             + 0.0, np.full(40, 5.0))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", TorridWarning)  # the truth sits by the edge
+        fit = fit_sweep(curves, observed)
+    assert "estimate_note" not in fit.attrs
+    assert fit.attrs["estimate_drag_timescale_days"] == pytest.approx(40.0, rel=0.03)
+    assert fit.attrs["estimate_radiative_timescale_days"] == pytest.approx(1.0, abs=0.02)
+    # (the phase-shift interpolation is not exact in the shift, so chi-square is small, not 0)
+    assert fit.attrs["estimate_chi_square"] < 0.5

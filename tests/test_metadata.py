@@ -7,6 +7,8 @@ Conventions 1.10, 2022, sections 3.1-3.3): a variable of a dimensional quantity 
 units. The files are the ones the commands write, read back with xarray.
 """
 
+import warnings
+
 import numpy as np
 import pytest
 import xarray as xr
@@ -17,6 +19,7 @@ from torrid.io.phasefile import write_phase_netcdf
 from torrid.io.settings import setting
 from torrid.io.variables import PARAMETERS, TABLES
 from torrid.workflow.fit import fit_table, synthetic_observation
+from torrid.workflow.joint_fit import fit_observation
 from torrid.workflow.phase import phase_curve
 
 SWEEP = """\
@@ -61,7 +64,15 @@ def files(tmp_path_factory):
     fit_path = folder / "meta-fit.nc"
     fit_table(folder / "observed.csv", table_path, None, output=fit_path, offset_deg=0.0,
               offset_error_deg=90.0, amplitude_ppm=100.0, amplitude_error_ppm=1e3)
-    return {"sweep": [table_path], "phase": phases, "fit": [fit_path]}
+    (folder / "obs.toml").write_text("[[curve]]\nfile = \"observed.csv\"\nband = \"4.0-5.0\"\n")
+    joint = []
+    for mode in ("free", "shape"):  # the joint fit's files (issue 15)
+        joint.append(folder / f"meta-fit-{mode}.nc")
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", torrid.TorridWarning)
+            fit_observation(folder / "obs.toml", table_path, temperatures=mode,
+                            output=joint[-1])
+    return {"sweep": [table_path], "phase": phases, "fit": [fit_path, *joint]}
 
 
 def _opened(path):

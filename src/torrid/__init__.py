@@ -14,7 +14,7 @@ _API = ("build_case_config", "run", "ModelConfig", "load_config", "phase_curve",
 _PLOTS = {"plot_map": "plots", "plot_planet_map": "plots", "plot_spinup": "plots",
           "plot_sweep_diagnostics": "sweep_plots", "plot_sweep_maps": "sweep_plots",
           "plot_phase_curve": "phase_plot", "plot_phase_curve_family": "phase_plot",
-          "plot_fit": "fit_plot"}
+          "plot_fit": "fit_plot", "plot_posterior": "fit_plot"}
 __all__ = ["__version__", "TorridWarning", *_API, *_PLOTS]
 
 

@@ -122,10 +122,31 @@ def sweep(sweep_file: str | os.PathLike, *, workers: int | None = None,
 
 
 def fit(observed_csv: str | os.PathLike, table_path: str | os.PathLike,
-        settings: ObserverSettings | None = None, **comparison) -> xr.Dataset:
-    """Fit a measured phase curve (CSV: phase, flux ratio ppm, error ppm) with a sweep table
-    that has maps; ``comparison``: offset_deg, offset_error_deg, amplitude_ppm,
-    amplitude_error_ppm (see :func:`torrid.workflow.fit.fit_sweep`)."""
+        settings: ObserverSettings | None = None, *, temperatures: str = "fixed",
+        posterior: int | None = None, progress: bool = True, **comparison) -> xr.Dataset:
+    """Fit a measured phase curve (CSV: phase, flux ratio ppm, error ppm) or the curves of an
+    observation file (TOML, :mod:`torrid.io.observation`) with a sweep table that has maps.
+
+    ``temperatures``: ``fixed``, ``free`` or ``shape``; ``posterior``: emcee steps per walker
+    (summary in the returned attributes); ``comparison`` (one CSV, fixed end points):
+    offset_deg, offset_error_deg, amplitude_ppm, amplitude_error_ppm (see
+    :func:`torrid.workflow.fit.fit_sweep`)."""
+    from pathlib import Path
+
     from torrid.workflow.fit import fit_table
 
-    return fit_table(observed_csv, table_path, settings, **comparison)
+    joint = Path(observed_csv).suffix.lower() == ".toml" or temperatures != "fixed" or posterior
+    if not joint:
+        return fit_table(observed_csv, table_path, settings, **comparison)
+    from torrid.io.observation import MeasuredCurve, Observation
+    from torrid.io.observed import read_observed_csv
+    from torrid.workflow.joint_fit import fit_observation
+
+    observation = observed_csv
+    if Path(observed_csv).suffix.lower() != ".toml":
+        settings = settings or ObserverSettings()
+        observation = Observation(curves=(MeasuredCurve(read_observed_csv(observed_csv),
+                                                        settings),), settings=settings,
+                                  source=str(observed_csv))
+    return fit_observation(observation, table_path, temperatures=temperatures,
+                           posterior_steps=posterior, progress=progress)[0]

@@ -179,6 +179,20 @@ FIT_VARIABLES: dict[str, Variable] = {
     "observed_error": Variable(("observation",), "ppm", "1-sigma error of the measured flux ratio"),
     "consistent": Variable(_P, None,
                            "reproduces the measured offset and amplitude within their errors"),
+    "chi_square_fixed_temperatures": Variable(_P, "1", "chi-square against the observation with "
+                                                       "the assumed temperature end points"),
+    "night_temperature_fit": Variable(_P, "K", "fitted temperature of the nightside "
+                                               "equilibrium thickness (profiled end point)"),
+    "day_temperature_fit": Variable(_P, "K", "fitted temperature of the substellar equilibrium "
+                                             "thickness (profiled end point)"),
+    "shape_offset": Variable(("curve", PARAMETERS), "ppm", "fitted offset (mean level) of each "
+                                                           "curve's normalised model"),
+    "shape_amplitude": Variable(("curve", PARAMETERS), "ppm", "fitted peak-to-peak amplitude of "
+                                                              "each curve's normalised model"),
+    "best_curve_flux_ratio": Variable(("curve", "phase"), "ppm",
+                                      "model phase curve of the best grid point in each band"),
+    "observed_curve": Variable(("observation",), "1", "index of the measured curve each point "
+                                                      "belongs to (attribute curves)"),
 }
 
 # --- sweep tables (torrid.workflow.collect) ---------------------------------------------------

@@ -7,8 +7,13 @@ confidence regions of two jointly estimated parameters are chi^2 - chi^2_min <= 
 and <= 6.18 (95.45 %) (Avni 1976; the values are the chi-square quantiles with 2 degrees of
 freedom, from memory of the usual tables and checked against scipy.stats.chi2 in the tests).
 The best estimate interpolates between grid points: the model curve is interpolated bilinearly
-between the grid points (in log10 of the axis values where they are log-spaced) and chi^2 of
-the interpolated curve is minimised over the cells around the best grid point.
+between the grid points in the fractional grid index of each axis (:mod:`torrid.workflow.fit_axes`:
+log10 of the axis values where they are log-spaced, and the drag *rate* 1/tau between the
+longest finite drag time and ``inf``, so an axis holding ``inf`` is interpolated too) and chi^2 of
+the interpolated curve is minimised over the cells around the best grid point. The fit warns
+(:mod:`torrid.workflow.fit_checks`) when the data look like a fraction rather than ppm, when the
+reduced chi-square is far from 1, when the best point is on the grid's edge and when there is no
+interpolated estimate.
 """
 
 from __future__ import annotations
@@ -20,6 +25,8 @@ import xarray as xr
 
 from torrid.io.observed import ObservedCurve
 from torrid.io.variables import FIT_VARIABLES
+from torrid.workflow import fit_checks
+from torrid.workflow.fit_axes import AxisCoordinate, is_log_spaced
 
 #: Delta chi-square of the 68.27 % and 95.45 % joint regions of two parameters (Avni 1976).
 DELTA_CHI2 = {"68.27%": 2.30, "95.45%": 6.18}
@@ -49,22 +56,13 @@ def chi_square(curves: xr.DataArray, observed: ObservedCurve) -> xr.DataArray:
     """chi^2 of every grid point's curve against the measured one."""
     model = model_at_phases(curves, observed.phase)
     resid = (observed.flux_ratio_ppm - model) / observed.error_ppm
-    return (resid**2).sum("observation")
-
-
-def _is_log_spaced(values: np.ndarray) -> bool:
-    values = np.asarray(values, float)
-    if values.size < 3 or np.any(values <= 0) or not np.all(np.isfinite(values)):
-        return False
-    steps = np.diff(np.log10(values))
-    return bool(np.allclose(steps, steps[0], rtol=1e-6)) and not np.allclose(
-        np.diff(values), np.diff(values)[0], rtol=1e-6)
+    return (resid**2).sum("observation", skipna=False)  # a failed point (NaN) stays NaN
 
 
 def axis_transform(values) -> tuple[np.ndarray, bool]:
-    """Coordinates in which to interpolate: log10 for log-spaced positive axes."""
+    """Coordinates in which to plot: log10 for log-spaced positive axes."""
     values = np.asarray(values, float)
-    log = _is_log_spaced(values)
+    log = is_log_spaced(values)
     return (np.log10(values) if log else values), log
 
 
@@ -136,6 +134,7 @@ def fit_sweep(curves: xr.Dataset, observed: ObservedCurve, *, offset_deg: float 
     """
     flux = curves["flux_ratio"]
     dims = [d for d in flux.dims if d != "phase"]
+    fit_checks.check_units(observed.flux_ratio_ppm, observed.error_ppm, observed.source)
     if not dims:
         raise FitError("the phase curves have no swept dimensions: fit a sweep table")
     chi2 = chi_square(flux, observed)
@@ -159,19 +158,34 @@ def fit_sweep(curves: xr.Dataset, observed: ObservedCurve, *, offset_deg: float 
         out.attrs[f"best_{d}"] = float(flux[d].values[best_index[d]])
     out.attrs["chi_square_min"] = float(chi2.min())
     out.attrs["degrees_of_freedom"] = int(observed.phase.size - min(2, len(dims)))
-    if len(dims) >= 2:
+    source = f"fit of {observed.source}"
+    fit_checks.check_grid_edge(best_index, dict(flux.sizes), source)
+    fit_checks.check_chi_square(out.attrs["chi_square_min"], out.attrs["degrees_of_freedom"],
+                                source)
+    reason = None
+    if len(dims) < 2:
+        reason = "the sweep has one swept dimension (the estimate needs two)"
+    else:
         main = dims[:2]
         rest = {d: best_index[d] for d in dims[2:]}
-        model = model_at_phases(flux.isel(rest).transpose(*main, "phase"), observed.phase).values
-        (xt, xlog), (yt, ylog) = (axis_transform(flux[d].values) for d in main)
-        if np.isfinite(xt).all() and np.isfinite(yt).all():
-            xs, ys, zs = interpolated_minimum(model, xt, yt, observed)
-            for d, v, log in ((main[0], xs, xlog), (main[1], ys, ylog)):
-                out.attrs[f"estimate_{d}"] = 10**v if log else v
-            out.attrs["estimate_chi_square"] = zs
+        axes = [AxisCoordinate(d, flux[d].values) for d in main]
+        plane = flux.isel(rest).isel({a.name: a.order for a in axes}).transpose(*main, "phase")
+        model = model_at_phases(plane, observed.phase).values
+        if min(a.size for a in axes) < 2:
+            reason = "an axis has a single point"
+        elif not np.isfinite(model).all():
+            reason = ("some grid points have no phase curve (failed or missing): bilinear "
+                      "interpolation needs every point")
         else:
-            out.attrs["estimate_note"] = ("no interpolated estimate: an axis has non-finite "
-                                          "values (e.g. inf for no drag)")
+            us, vs, zs = interpolated_minimum(model, np.arange(axes[0].size, dtype=float),
+                                              np.arange(axes[1].size, dtype=float), observed)
+            for axis, u in zip(axes, (us, vs)):
+                out.attrs[f"estimate_{axis.name}"] = float(axis.value(u))
+            out.attrs["estimate_chi_square"] = zs
+            out.attrs["estimate_interpolation"] = "; ".join(a.describe() for a in axes)
+    if reason is not None:
+        out.attrs["estimate_note"] = f"no interpolated estimate: {reason}"
+        fit_checks.warn(f"{source}: no interpolated estimate: {reason}")
     if offset_deg is not None or amplitude_ppm is not None:
         ok = xr.ones_like(chi2, dtype=bool)
         if offset_deg is not None:
