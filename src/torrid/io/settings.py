@@ -334,6 +334,10 @@ SETTINGS: tuple[Setting, ...] = (
     Setting("run", "restart_interval_days", float, 10.0, "days", "restart interval",
             "simulated days between restart data (whole output intervals)",
             minimum=0, exclusive_minimum=True, sweepable=False),
+    Setting("run", "keep_restart", bool, True, "", "keep restart state",
+            "keep the one latest restart state beside a completed run file (--resume with a "
+            "longer run.days then extends it bit for bit); false removes the restart data",
+            sweepable=False),
     Setting("run", "initial_fields", str, None, "", "initial fields file",
             "netCDF file with h, u, v on a lon-lat grid (a run file will do) to start from",
             unset="rest (planets) or the case's initial state"),

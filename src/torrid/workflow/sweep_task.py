@@ -86,11 +86,7 @@ def write_run(config, path: str, store) -> tuple[str, str]:
 
 
 def _remove_restart(store) -> None:
-    try:
-        store.clear()
-        store.folder.rmdir()
-    except OSError:
-        pass
+    store.remove()
 
 
 def _result(path, status, reason, start, host) -> dict:
