@@ -14,7 +14,9 @@ from tqdm.auto import tqdm
 from torrid.io.config import SECONDS_PER_DAY, ModelConfig
 from torrid.io.runfile import build_dataset, check_writable, open_run, write_atomic
 from torrid.physics.timestepping import COURANT_LIMIT, IMEXStepper
+from torrid.io.storage import check_output_path
 from torrid.workflow.health import HealthProblem, check_step
+from torrid.workflow.limits import check_resources, check_schedule, check_steps
 from torrid.workflow.linear_run import run_linear
 from torrid.workflow.output import (RunSummary, append_snapshot, output_coordinates,
                                     planet_attrs, relative_change, run_attrs, snapshot,
@@ -161,6 +163,10 @@ def integrate(model: Model, progress: bool = True, label: str = "",
     config = model.config
     interval_s = config.run.output_interval_days * SECONDS_PER_DAY
     n_outputs = max(1, math.ceil(config.run.days / config.run.output_interval_days - 1e-9))
+    fixed = config.numerics.time_step_s is not None
+    check_steps(n_outputs * model.steps_per_output,
+                "numerics.time_step_s" if fixed else "numerics.courant_number",
+                config.numerics.time_step_s if fixed else config.numerics.courant_number)
     restart_every = max(1, round(config.run.restart_interval_days
                                  / config.run.output_interval_days))
     streaming = restart is not None
@@ -248,6 +254,7 @@ def run_config(config: ModelConfig, progress: bool = True, restart: RestartStore
     """Build and integrate the model of ``config`` (see :func:`integrate`); with
     ``numerics.solver = "linear"``, solve its linear steady state instead (no time loop, no
     restart data: :mod:`torrid.workflow.linear_run`)."""
+    check_schedule(config)
     if config.numerics.solver == "linear":  # issue 13: the one dispatch on the solver
         return run_linear(config)
     return integrate(build_model(config), progress=progress, restart=restart, resume=resume)
@@ -266,7 +273,10 @@ def run_to_file(config: ModelConfig, output: str | os.PathLike, *, overwrite: bo
 
     Returns the run file opened lazily (maps are read when used).
     """
+    check_output_path(output)
     check_writable(output, overwrite)
+    check_schedule(config)
+    check_resources(config, output)
     store = RestartStore(output)
     with store.lock():
         try:

@@ -40,6 +40,7 @@ from torrid.io.atomic import atomic_path
 from torrid.io.config import ConfigError, ModelConfig
 from torrid.io.runstream import (append_record, merge_records, read_scalar_series,
                                  start_record_file)
+from torrid.io.storage import storage
 
 LOCK_NAME = "lock"
 STATE_NAME = "state.npz"
@@ -57,6 +58,17 @@ def restart_folder(output: str | os.PathLike) -> Path:
     return output.parent / f".{output.name}.restart"
 
 
+def _guarded(method):
+    """Run a store method so that an OS error is one line: the path, the cause in plain
+    words, and what recovers the run (:func:`torrid.io.storage.storage`)."""
+    def wrapper(self, *args, **kwargs):
+        target = self.output if method.__name__ == "publish" else self.folder
+        with storage(target, self.recovery(published=method.__name__ == "publish")):
+            return method(self, *args, **kwargs)
+    wrapper.__name__, wrapper.__doc__ = method.__name__, method.__doc__
+    return wrapper
+
+
 def _save_npz(path: Path, **arrays) -> None:
     with atomic_path(path) as tmp, open(tmp, "wb") as fh:
         np.savez(fh, **arrays)
@@ -70,6 +82,17 @@ class RestartStore:
         self.folder = restart_folder(output)
         self.history: list[tuple[str, int]] = []  # closed history files and their records
         self._segment = None  # (name, open handle, first index, records)
+        self.saved_day: float | None = None  # the day of the latest restart state written
+
+    def recovery(self, published: bool = False) -> str:
+        """What recovers the run after a failed write, in words."""
+        if published:
+            return (f"the finished run is kept in its restart data ({self.folder}): fix "
+                    "that and rerun with --resume, which only writes the file")
+        if self.saved_day is None:
+            return "nothing of the run was kept: fix that and rerun"
+        return (f"the run is kept in its restart data up to day {self.saved_day:g} "
+                f"({self.folder}): fix that (free space, permissions) and rerun with --resume")
 
     def exists(self) -> bool:
         """True if a complete restart state is there."""
@@ -78,7 +101,8 @@ class RestartStore:
     @contextlib.contextmanager
     def lock(self):
         """Hold the output's run lock (released by the OS even on kill -9), or refuse."""
-        self.folder.mkdir(parents=True, exist_ok=True)
+        with storage(self.folder, "nothing was run: fix that and rerun"):
+            self.folder.mkdir(parents=True, exist_ok=True)
         try:
             import fcntl
         except ImportError:  # no POSIX locks: no protection against two runs
@@ -113,6 +137,7 @@ class RestartStore:
         if self.folder.is_dir():
             shutil.rmtree(self.folder, ignore_errors=True)
 
+    @_guarded
     def append(self, index: int, time_days: float, snapshot: dict, template) -> None:
         """Append output snapshot number ``index`` (time 0 is number 0) to the open segment,
         starting one (from ``template(time_days, snapshot)``, a one-record run dataset) if
@@ -141,11 +166,14 @@ class RestartStore:
         else:
             (self.folder / name).unlink(missing_ok=True)
 
+    @_guarded
     def write_state(self, config: ModelConfig, progress: dict, state: np.ndarray) -> None:
         """Store the model state and the run's counters (``progress``: JSON-safe values),
         after closing the open segment; then remove what the state no longer refers to."""
         self.close_segment()
         self.folder.mkdir(parents=True, exist_ok=True)
+        if progress.get("times_days"):
+            self.saved_day = float(progress["times_days"][-1])
         _save_npz(self.folder / STATE_NAME, state=state,
                   progress=np.array(json.dumps({**progress, "history": self.history})),
                   configuration=np.array(json.dumps(config.to_dict(), sort_keys=True)))
@@ -157,11 +185,12 @@ class RestartStore:
             if path.name not in keep:  # old segments and run files, killed writers' temporaries
                 path.unlink(missing_ok=True)
 
+    @_guarded
     def merged(self, config: ModelConfig, progress: dict, state: np.ndarray,
                attrs: dict) -> Path:
         """A completed run: the history merged into one run file (global ``attrs``), which
         becomes the only history of the state written with it. Returns the file."""
-        self.close_segment()
+        self.write_state(config, progress, state)  # whole even if the merge fails
         total = sum(count for _, count in self.history)
         path = self.folder / f"run-{total:06d}.nc"
         with atomic_path(path) as tmp:
@@ -170,6 +199,7 @@ class RestartStore:
         self.write_state(config, progress, state)
         return path
 
+    @_guarded
     def failed(self, attrs: dict) -> Path:
         """A failed run: the saved history and the open segment (up to the last good state)
         merged into a run file for the output; the restart state is left as it was."""
@@ -186,6 +216,7 @@ class RestartStore:
             (self.folder / name).unlink(missing_ok=True)
         return path
 
+    @_guarded
     def publish(self, path: Path, link: bool) -> Path:
         """Put the run file ``path`` (in this folder) at the output: a hard link (``link``:
         the file stays the restart's history) or a rename."""
@@ -237,5 +268,6 @@ class RestartStore:
                               f"different configuration ({', '.join(differing) or 'sections'} "
                               "differ)")
         self.history = history
+        self.saved_day = float(progress["times_days"][-1]) if progress.get("times_days") else None
         self._remove_unreferenced()  # a segment open at the kill
         return progress, state, (times, series)

@@ -22,13 +22,14 @@ from torrid.interface.cli import plot as plot_cmd
 from torrid.interface.cli import run as run_cmd
 from torrid.interface.cli import settings as settings_cmd
 from torrid.interface.cli import sweep as sweep_cmd
+from torrid.io.storage import StorageError
 from torrid.meta import TorridWarning, __version__
 from torrid.workflow.driver import RunFailedError
 
 SUBCOMMANDS = {"run": run_cmd, "plot": plot_cmd, "phase": phase_cmd, "sweep": sweep_cmd,
                "collect": collect_cmd, "fit": fit_cmd, "demo": demo_cmd,
                "settings": settings_cmd}
-USER_ERRORS = (ValueError, FileExistsError, FileNotFoundError, KeyError)
+USER_ERRORS = (ValueError, FileExistsError, FileNotFoundError, KeyError, StorageError)
 
 
 def build_parser() -> argparse.ArgumentParser:
