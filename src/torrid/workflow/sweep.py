@@ -26,6 +26,7 @@ from __future__ import annotations
 import concurrent.futures as cf
 from concurrent.futures.process import BrokenProcessPool
 import contextlib
+import math
 import os
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -37,6 +38,7 @@ from torrid.io.pointfile import (FAILED, FINISHED, STATUSES, canonical_json, rea
 from torrid.io.sweepspec import SweepPoint, SweepSpec
 from torrid.io.sweepmanifest import manifest_data, write_manifest
 from torrid.workflow import collect
+from torrid.workflow.limits import MAX_SWEEP_POINTS, check_resources
 from torrid.workflow.sanity import warn_implausible_points
 from torrid.workflow.sweep_task import THREAD_VARIABLES, run_point
 from torrid.workflow.sweep_worker import WorkerDied, WorkerPool
@@ -156,9 +158,24 @@ def plan_sweep(spec: SweepSpec, folder: Path, retry_failed: bool = False,
     return Plan(points, to_run, results, linear)
 
 
+def point_count(spec: SweepSpec) -> int:
+    """Points of ``spec``, counted from its dimensions (nothing is built)."""
+    return math.prod(spec.shape)
+
+
+def check_size(spec: SweepSpec, yes: bool) -> None:
+    """Refuse a sweep of more than :data:`~torrid.workflow.limits.MAX_SWEEP_POINTS` points
+    unless ``yes`` (one line, before anything is built)."""
+    count = point_count(spec)
+    if count > MAX_SWEEP_POINTS and not yes:
+        raise SweepError(f"sweep {spec.name}: {count} points "
+                         f"({' x '.join(str(n) for n in spec.shape)}), more than "
+                         f"{MAX_SWEEP_POINTS}: pass --yes to run them (--dry-run counts them)")
+
+
 def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | None = None,
               retry_failed: bool = False, maps: bool = False,
-              progress: bool = True) -> SweepOutcome:
+              progress: bool = True, yes: bool = False) -> SweepOutcome:
     """Run every point of ``spec`` that has no usable file yet, then write the sweep table.
 
     Parameters
@@ -176,7 +193,10 @@ def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | N
         Put the final h, u, v maps into the sweep table.
     progress : bool
         Show the progress bar.
+    yes : bool
+        Run a sweep of more than :data:`~torrid.workflow.limits.MAX_SWEEP_POINTS` points.
     """
+    check_size(spec, yes)
     if workers is not None and workers < 1:
         raise SweepError(f"--workers = {workers}: must be >= 1")
     if scheduler is not None:
@@ -196,6 +216,9 @@ def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | N
                                      f"invalid configuration: {point.error}", overwrite=True)
         plan = plan_sweep(spec, folder, retry_failed, points)
         warn_implausible_points([p.config for p in plan.to_run], stacklevel=3)
+        if plan.to_run:
+            check_resources(plan.to_run[0].config, folder, points=len(plan.to_run),
+                            stacklevel=3)
         outcome.skipped = len(plan.results)
         if plan.to_run:
             outcome.errors = _execute(plan, folder, workers, scheduler, progress,
