@@ -36,7 +36,7 @@ from pathlib import Path
 
 import numpy as np
 
-from torrid.io.atomic import atomic_path
+from torrid.io.atomic import atomic_path, try_lock
 from torrid.io.config import ConfigError, ModelConfig
 from torrid.io.runstream import (append_record, merge_records, read_scalar_series,
                                  start_record_file)
@@ -103,16 +103,11 @@ class RestartStore:
         """Hold the output's run lock (released by the OS even on kill -9), or refuse."""
         with storage(self.folder, "nothing was run: fix that and rerun"):
             self.folder.mkdir(parents=True, exist_ok=True)
-        try:
-            import fcntl
-        except ImportError:  # no POSIX locks: no protection against two runs
+        handle = try_lock(self.folder / LOCK_NAME)
+        if handle is False:  # no POSIX locks: no protection against two runs
             yield
             return
-        handle = open(self.folder / LOCK_NAME, "a")
-        try:
-            fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
-        except OSError:
-            handle.close()
+        if handle is None:
             raise RunLockedError(f"{self.output}: another torrid run is writing this output "
                                  "(wait for it, stop it, or choose another -o)") from None
         try:

@@ -33,6 +33,7 @@ from pathlib import Path
 
 from tqdm.auto import tqdm
 
+from torrid.io.atomic import try_lock
 from torrid.io.pointfile import (FAILED, FINISHED, STATUSES, canonical_json, read_point,
                                  write_failure_record)
 from torrid.io.sweepspec import SweepPoint, SweepSpec
@@ -95,20 +96,15 @@ def _folder_lock(folder: Path):
     every worker that inherited it have gone); yields the open lock file. The file is removed
     when the sweep ends. A lock taken on a file that another sweep removed meanwhile is
     retried on the new file, so two sweeps never both hold one."""
-    try:
-        import fcntl
-    except ImportError:  # no POSIX locks: no protection against two sweeps
-        yield None
-        return
     path = folder / LOCK_NAME
     while True:
-        handle = open(path, "a")
-        try:
-            fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
-        except OSError:
-            handle.close()
+        handle = try_lock(path)
+        if handle is False:  # no POSIX locks: no protection against two sweeps
+            yield None
+            return
+        if handle is None:
             raise SweepError(f"{folder}: another torrid sweep is running in this folder "
-                             "(wait for it, or stop it first)") from None
+                             "(wait for it, or stop it first)")
         try:
             same = os.fstat(handle.fileno()).st_ino == os.stat(path).st_ino
         except FileNotFoundError:
@@ -120,8 +116,7 @@ def _folder_lock(folder: Path):
         yield handle
     finally:
         path.unlink(missing_ok=True)  # while still holding it (see above)
-        fcntl.flock(handle, fcntl.LOCK_UN)
-        handle.close()
+        handle.close()  # releases the lock (the workers, which shared it, have gone)
 
 
 def _remove_stale_temporaries(folder: Path) -> None:
