@@ -19,14 +19,31 @@ import xarray as xr
 from torrid.io.cf import DAYS_COORDINATE, cf_dataset, netcdf_encoding
 
 
+#: HDF5 chunk cache of each variable of a file written or read record by record (bytes and
+#: slots). The library's default (64 MB and 1000 slots per variable) keeps every written
+#: one-record chunk of a map: memory then grew with the number of snapshots (+64 MB per
+#: map variable at T42 with 401 snapshots). One record at a time needs one chunk.
+CHUNK_CACHE_BYTES = 2**21
+CHUNK_CACHE_SLOTS = 61
+
+
+def _open(path: str | os.PathLike, mode: str = "r"):
+    """A netCDF4.Dataset with the small chunk cache of record-by-record access."""
+    import netCDF4
+
+    handle = netCDF4.Dataset(path, mode)
+    for variable in handle.variables.values():
+        variable.set_var_chunk_cache(size=CHUNK_CACHE_BYTES, nelems=CHUNK_CACHE_SLOTS,
+                                     preemption=1.0)
+    return handle
+
+
 def start_record_file(path: str | os.PathLike, template: xr.Dataset):
     """Write ``template`` (its records, usually one) to ``path`` with an unlimited time
     dimension; return the file opened for appending (a ``netCDF4.Dataset``)."""
-    import netCDF4
-
     cf_dataset(template).to_netcdf(path, engine="netcdf4", format="NETCDF4",
                                    encoding=netcdf_encoding(template), unlimited_dims=["time"])
-    return netCDF4.Dataset(path, "a")
+    return _open(path, "a")
 
 
 def append_record(handle, index: int, time_days: float, values: dict) -> None:
@@ -42,9 +59,7 @@ def append_record(handle, index: int, time_days: float, values: dict) -> None:
 
 def record_count(path: str | os.PathLike) -> int:
     """Number of records (snapshots) in a record file."""
-    import netCDF4
-
-    with netCDF4.Dataset(path) as handle:
+    with _open(path) as handle:
         return len(handle.dimensions["time"])
 
 
@@ -52,9 +67,7 @@ def read_scalar_series(path: str | os.PathLike, count: int | None = None
                        ) -> tuple[list[float], dict[str, list[float]]]:
     """Times (days) and every time series of numbers (not maps) of the first ``count``
     records (all if None)."""
-    import netCDF4
-
-    with netCDF4.Dataset(path) as handle:
+    with _open(path) as handle:
         handle.set_auto_mask(False)
         end = len(handle.dimensions["time"]) if count is None else count
         times = [float(t) for t in handle.variables[DAYS_COORDINATE][:end]]
@@ -68,8 +81,6 @@ def merge_records(sources: list[tuple[Path, int]], path: str | os.PathLike,
                   attrs: dict) -> None:
     """Copy the first ``n`` records of each ``(file, n)`` in ``sources``, in order, into a new
     record file at ``path`` with global attributes ``attrs``; memory holds one record."""
-    import netCDF4
-
     first, _ = sources[0]
     with xr.open_dataset(first, engine="netcdf4", decode_times=False,
                          mask_and_scale=False) as ds:
@@ -80,7 +91,7 @@ def merge_records(sources: list[tuple[Path, int]], path: str | os.PathLike,
     index = 0
     with start_record_file(path, template) as out:
         for source, count in sources:
-            with netCDF4.Dataset(source) as handle:
+            with _open(source) as handle:
                 handle.set_auto_mask(False)
                 names = [name for name, var in handle.variables.items()
                          if var.dimensions[:1] == ("time",)]

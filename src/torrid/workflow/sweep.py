@@ -28,12 +28,14 @@ from concurrent.futures.process import BrokenProcessPool
 import contextlib
 import math
 import os
+import sys
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from tqdm.auto import tqdm
 
 from torrid.io.atomic import try_lock
+from torrid.io.storage import storage
 from torrid.io.pointfile import (FAILED, FINISHED, STATUSES, canonical_json, read_point,
                                  write_failure_record)
 from torrid.io.sweepspec import SweepPoint, SweepSpec
@@ -197,7 +199,11 @@ def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | N
     if scheduler is not None:
         _import_distributed()  # a missing optional extra is refused before anything is written
     folder = spec.folder.resolve()
-    folder.mkdir(parents=True, exist_ok=True)
+    with storage(folder, "nothing was run: choose another --folder"):
+        folder.mkdir(parents=True, exist_ok=True)
+    if not os.access(folder, os.W_OK):
+        raise SweepError(f"{folder}: permission denied: the sweep folder is not writable; "
+                         "choose another --folder")
     outcome = SweepOutcome(folder=folder)
     with _folder_lock(folder) as lock:
         points = spec.points()
@@ -313,6 +319,8 @@ def _execute(plan: Plan, folder: Path, workers: int | None, scheduler: str | Non
                     kind = getattr(err, "kind", type(err).__name__)
                     errors.append(f"{point.file_name}: {kind}: "
                                   f"{str(err).splitlines()[0] if str(err) else ''}")
+                    tqdm.write(f"torrid: error: {errors[-1]} (the point is retried when the "
+                               "sweep is rerun)", file=sys.stderr)  # said when it happens
                     bar.set_postfix_str(f"{done} done, {failed} failed, {len(errors)} errors, "
                                         f"{min(slots, len(pending))} running", refresh=False)
                     bar.update(1)

@@ -22,7 +22,7 @@ from torrid.interface.cli import plot as plot_cmd
 from torrid.interface.cli import run as run_cmd
 from torrid.interface.cli import settings as settings_cmd
 from torrid.interface.cli import sweep as sweep_cmd
-from torrid.io.storage import StorageError
+from torrid.io.storage import StorageError, cause
 from torrid.meta import TorridWarning, __version__
 from torrid.workflow.driver import RunFailedError
 
@@ -116,6 +116,13 @@ def _dispatch(args: argparse.Namespace) -> int:
             raise
         print(f"torrid: {err}", file=sys.stderr)
         return 3
+    except (OSError, RuntimeError) as err:  # any other failure to read or write a file
+        if args.debug or not (isinstance(err, OSError) or "NetCDF" in str(err)):
+            raise
+        where = getattr(err, "filename", None) or "a file"
+        print(f"torrid: error: {where}: {cause(err, where if where != 'a file' else '.')}; "
+              "nothing after it was written", file=sys.stderr)
+        return 2
     except KeyboardInterrupt as err:
         hint = {"sweep": "; rerun the same command to resume (finished points are kept)",
                 "run": "; rerun with --resume to continue from the latest restart",
