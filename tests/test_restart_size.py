@@ -130,3 +130,27 @@ def test_plot_names_a_file_with_renamed_dimensions(tmp_path, capsys):
     assert main(["plot", str(renamed)]) == 2
     err = capsys.readouterr().err.strip()
     assert err.startswith(f"torrid: error: {renamed}: not a torrid run file") and "\n" not in err
+
+
+def _peak_rss_mb(argv) -> float:
+    proc = subprocess.Popen(argv, stdout=subprocess.DEVNULL, stderr=subprocess.PIPE)
+    _, status, usage = os.wait4(proc.pid, 0)
+    assert os.waitstatus_to_exitcode(status) == 0, proc.stderr.read().decode()
+    return usage.ru_maxrss / 1024
+
+
+@pytest.mark.slow  # three runs in fresh processes, about a minute on a loaded machine
+def test_peak_memory_does_not_grow_with_the_number_of_snapshots(tmp_path):
+    """T21 over 5 days with 21, 401 and 1201 snapshots: holding the maps (5 x 16 kB each,
+    twice at the end) or a library cache of them (HDF5's default keeps 1000 chunks per
+    variable) added about 100 MB at 401; streamed, the peak levels off (measured +16 MB at
+    401, a few MB more at 1201: library buffers). benchmarks/bench_memory.py measures T42."""
+    peaks = {}
+    for count in (21, 401, 1201):
+        argv = [sys.executable, "-m", "torrid", "run", "-o", str(tmp_path / f"m{count}.nc"),
+                "-q", "--no-plot", "--set", "numerics.truncation=21", "--set", "run.days=5",
+                "--set", f"run.output_interval_days={5 / (count - 1)}",
+                "--set", "run.stop_at_steady_state=false"]
+        peaks[count] = _peak_rss_mb(argv)
+    assert peaks[401] - peaks[21] < 30, peaks
+    assert peaks[1201] - peaks[401] < 12, peaks  # held maps would add 64 MB more

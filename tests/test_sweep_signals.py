@@ -150,7 +150,8 @@ def test_workers_live_across_points(tmp_path):
     from torrid.workflow.sweep_task import run_point
 
     sweep = tmp_path / "short.toml"
-    sweep.write_text(SWEEP.replace("days = 400.0", "days = 0.5"))
+    sweep.write_text(SWEEP.replace("days = 400.0", "days = 0.5")
+                     .replace("output_interval_days = 1.0", "output_interval_days = 0.25"))
     spec = load_sweep(sweep, folder=tmp_path / "short")
     spec.folder.mkdir()
     pool = WorkerPool(2)

@@ -25,6 +25,8 @@ from torrid.io.cf import DAYS_COORDINATE, cf_dataset, netcdf_encoding
 #: map variable at T42 with 401 snapshots). One record at a time needs one chunk.
 CHUNK_CACHE_BYTES = 2**21
 CHUNK_CACHE_SLOTS = 61
+#: Records per chunk of a number series (time, diagnostics); maps have one record a chunk.
+SERIES_CHUNK = 512
 
 
 def _open(path: str | os.PathLike, mode: str = "r"):
@@ -41,8 +43,12 @@ def _open(path: str | os.PathLike, mode: str = "r"):
 def start_record_file(path: str | os.PathLike, template: xr.Dataset):
     """Write ``template`` (its records, usually one) to ``path`` with an unlimited time
     dimension; return the file opened for appending (a ``netCDF4.Dataset``)."""
+    encoding = netcdf_encoding(template)
+    for name, variable in template.variables.items():  # number series: chunks of many records
+        if variable.dims == ("time",):
+            encoding.setdefault(name, {})["chunksizes"] = (SERIES_CHUNK,)
     cf_dataset(template).to_netcdf(path, engine="netcdf4", format="NETCDF4",
-                                   encoding=netcdf_encoding(template), unlimited_dims=["time"])
+                                   encoding=encoding, unlimited_dims=["time"])
     return _open(path, "a")
 
 
@@ -93,12 +99,16 @@ def merge_records(sources: list[tuple[Path, int]], path: str | os.PathLike,
         for source, count in sources:
             with _open(source) as handle:
                 handle.set_auto_mask(False)
-                names = [name for name, var in handle.variables.items()
-                         if var.dimensions[:1] == ("time",)]
-                for record in range(count):
-                    for name in names:
-                        out.variables[name][index] = handle.variables[name][record]
-                    index += 1
+                series = [name for name, var in handle.variables.items()
+                          if var.dimensions == ("time",)]
+                maps = [name for name, var in handle.variables.items()
+                        if var.dimensions[:1] == ("time",) and name not in series]
+                for name in series:  # numbers: all records at once
+                    out.variables[name][index:index + count] = handle.variables[name][:count]
+                for record in range(count):  # maps: one record in memory
+                    for name in maps:
+                        out.variables[name][index + record] = handle.variables[name][record]
+                index += count
 
 
 def is_time_dependent(template: xr.Dataset, name: str) -> bool:
