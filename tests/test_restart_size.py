@@ -154,3 +154,20 @@ def test_peak_memory_does_not_grow_with_the_number_of_snapshots(tmp_path):
         peaks[count] = _peak_rss_mb(argv)
     assert peaks[401] - peaks[21] < 30, peaks
     assert peaks[1201] - peaks[401] < 12, peaks  # held maps would add 64 MB more
+
+
+def test_phase_and_plot_read_only_the_snapshots_they_use(tmp_path, capsys):
+    """torrid phase and torrid plot open the run file lazily: nothing is in memory until
+    used, and the curve of the final map equals the one of the fully loaded file."""
+    from torrid.io.runfile import read_run
+    from torrid.workflow.phase import phase_curve
+
+    out = tmp_path / "r.nc"
+    torrid.run(_brief(1.0), out)
+    lazy = read_run(out, lazy=True)
+    assert not any(lazy[name].variable._in_memory for name in ("h", "u", "v"))
+    a = phase_curve(lazy).flux_ratio.values
+    assert not lazy.u.variable._in_memory  # the curve read h (its last map), not the winds
+    b = phase_curve(read_run(out)).flux_ratio.values
+    assert np.array_equal(a, b)
+    assert main(["phase", str(out)]) == 0
