@@ -28,7 +28,7 @@ def test_existing_output_is_kept_without_overwrite(tmp_path, capsys):
     err = capsys.readouterr().err
     assert err.startswith("torrid: error:") and "--overwrite" in err and len(err.splitlines()) == 1
     assert out.read_text() == "precious"
-    assert main(["run", "--truncation", "10", "--days", "0.1", "-o", str(out), "-q",
+    assert main(["run", "--truncation", "10", "--days", "0.1", "--output-interval", "0.05", "-o", str(out), "-q",
                  "--overwrite"]) == 0
 
 

@@ -98,7 +98,7 @@ def run(config: ModelConfig, output: str | os.PathLike | None = None, *,
 
 def sweep(sweep_file: str | os.PathLike, *, workers: int | None = None,
           scheduler: str | None = None, folder: str | os.PathLike | None = None,
-          maps: bool = False, progress: bool = False) -> xr.Dataset:
+          maps: bool = False, progress: bool = False, yes: bool = False) -> xr.Dataset:
     """Run a sweep file (resuming if it ran before) and return its sweep table.
 
     Parameters
@@ -111,12 +111,14 @@ def sweep(sweep_file: str | os.PathLike, *, workers: int | None = None,
         Instead of the file's ``[sweep] folder``.
     maps : bool
         Put the final h, u, v maps into the table (needed for phase curves and fits).
+    yes : bool
+        Run a sweep of more than 1000 points (refused otherwise).
     """
     from torrid.io.sweepfile import load_sweep
     from torrid.workflow.sweep import run_sweep
 
     outcome = run_sweep(load_sweep(sweep_file, folder=folder), workers=workers,
-                        scheduler=scheduler, maps=maps, progress=progress)
+                        scheduler=scheduler, maps=maps, progress=progress, yes=yes)
     with xr.open_dataset(outcome.table_path) as ds:
         return ds.load()
 

@@ -39,3 +39,21 @@ def write_text(path: str | os.PathLike, text: str) -> Path:
     with atomic_path(path) as tmp:
         tmp.write_text(text, encoding="utf-8")
     return Path(path)
+
+
+def try_lock(path: str | os.PathLike):
+    """Open ``path`` (created if missing) and take an exclusive ``flock`` on it without
+    waiting. Returns the open file (the lock lasts while it, or any process that inherited
+    it, is open), None if another process holds the lock, or ``False`` where the platform
+    has no POSIX locks."""
+    try:
+        import fcntl
+    except ImportError:
+        return False
+    handle = open(path, "a")
+    try:
+        fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
+    except OSError:
+        handle.close()
+        return None
+    return handle

@@ -96,22 +96,47 @@ def load_netcdf(path: str | os.PathLike, what: str, error: type[Exception]) -> x
         raise error(f"{path}: not a readable netCDF {what} ({type(err).__name__})") from None
 
 
+def open_run(path: str | os.PathLike) -> xr.Dataset:
+    """Open a run file lazily (times in days, as :func:`read_run`): variables are read when
+    used, so a reader of the last snapshot does not load the series."""
+    return xr.open_dataset(path, engine="netcdf4", decode_times=False)
+
+
 def is_planet_run(ds: xr.Dataset) -> bool:
     """True for the run file of a forced hot-planet run (``case = "planet"``, written from
     :attr:`torrid.io.config.ModelConfig.is_planet`), False for a standard case."""
     return ds.attrs.get("case") == "planet"
 
 
-def read_run(path: str | os.PathLike) -> xr.Dataset:
-    """Open a run file fully into memory (the file is closed afterwards).
+def read_run(path: str | os.PathLike, lazy: bool = False) -> xr.Dataset:
+    """Open a run file fully into memory (the file is closed afterwards), or ``lazy``: open
+    it so that only the variables and snapshots used are read (``torrid phase`` and
+    ``torrid plot`` read the final map, not the series).
 
     Raises
     ------
     RunFileError
-        One line naming the file if it is missing, unreadable or lacks the run variables.
+        One line naming the file if it is missing, unreadable, lacks the run variables or
+        has them on other dimensions than (time, lat, lon).
     """
-    ds = load_netcdf(path, "run file", RunFileError)
+    if lazy:
+        path = Path(path)
+        if not path.is_file():
+            raise RunFileError(f"{path}: no such run file")
+        try:
+            ds = open_run(path)
+        except Exception as err:  # noqa: BLE001 - any reader failure means the same
+            raise RunFileError(f"{path}: not a readable netCDF run file "
+                               f"({type(err).__name__})") from None
+    else:
+        ds = load_netcdf(path, "run file", RunFileError)
     missing = [name for name in ("h", "u", "v") if name not in ds]
     if missing:
         raise RunFileError(f"{path}: not a torrid run file (missing {', '.join(missing)})")
+    for name in ("h", "u", "v"):
+        if ds[name].dims != VARIABLES[name].dims:
+            raise RunFileError(f"{path}: not a torrid run file ({name} is on "
+                               f"({', '.join(ds[name].dims)}), not "
+                               f"({', '.join(VARIABLES[name].dims)}): were dimensions "
+                               "renamed?)")
     return ds

@@ -71,6 +71,8 @@ class Setting:
         ``inf`` is allowed (it then means what the description says, e.g. "no drag").
     nonzero : bool
         0 is refused (rotation period).
+    minimum_magnitude : float or None
+        Smallest allowed ``|value|`` of a finite value (rotation period of either sign).
     choices : tuple of str or None
         The allowed words of a ``str`` key.
     unset : str
@@ -92,6 +94,7 @@ class Setting:
     exclusive_maximum: bool = False
     allow_inf: bool = False
     nonzero: bool = False
+    minimum_magnitude: float | None = None
     choices: tuple[str, ...] | None = None
     unset: str = ""
     sweepable: bool = True
@@ -143,6 +146,8 @@ class Setting:
             raise ConfigError(f"{where}: must be an integer")
         if math.isnan(as_float) or (math.isinf(as_float) and not self.allow_inf):
             raise ConfigError(f"{where}: must be a finite number")
+        if math.isinf(as_float):  # allowed (checked above): it means what the row says
+            return as_float
         if self.minimum is not None and (value <= self.minimum if self.exclusive_minimum
                                          else value < self.minimum):
             raise ConfigError(f"{where}: must be {'>' if self.exclusive_minimum else '>='} "
@@ -154,6 +159,8 @@ class Setting:
         if self.nonzero and value == 0:
             raise ConfigError(f"{where}: must be non-zero" + (" (inf: none)" if self.allow_inf
                                                                else ""))
+        if self.minimum_magnitude is not None and abs(value) < self.minimum_magnitude:
+            raise ConfigError(f"{where}: |value| must be >= {_number(self.minimum_magnitude)}")
         return int(value) if integer else as_float
 
     def allowed(self) -> str:
@@ -171,6 +178,8 @@ class Setting:
             parts.append(f"{'<' if self.exclusive_maximum else '<='} {_number(self.maximum)}")
         if self.nonzero:
             parts.append("non-zero")
+        if self.minimum_magnitude is not None:
+            parts.append(f"|value| >= {_number(self.minimum_magnitude)}")
         if self.kind is int:
             parts.insert(0, "integer")
         if self.allow_inf:
@@ -233,16 +242,26 @@ SECTIONS: dict[str, str] = {
 
 #: Invented default planet: typical hot-Jupiter values (radius 1.2 Jupiter radii of 7.1492e7 m,
 #: rotation period 3 days, gravity-wave speed sqrt(g H) = 2 km/s).
+#:
+#: Physical bounds (issue 12; common practice, chosen wider than any planet or moon, from
+#: memory: radii of about 2e5 m (small moons) to 2e8 m (inflated hot Jupiters), surface
+#: gravity of about 0.1 to 100 m s-2, with room below for the reduced gravity of 1.5-layer
+#: models; rotation and orbital periods from 1e-3 days (1.4 minutes, far beyond break-up)
+#: to 1e7 days): beyond them a value is a slip, and 1e308 or 1e-300 overflowed the model.
+RADIUS_BOUNDS_M = (1e5, 1e9)
+GRAVITY_BOUNDS_M_S2 = (1e-3, 1e4)
+PERIOD_BOUNDS_DAYS = (1e-3, 1e7)
 SETTINGS: tuple[Setting, ...] = (
     # --- planet
     Setting("planet", "radius_m", float, 1.2 * 7.1492e7, "m", "planet radius",
-            "planet radius a", minimum=0, exclusive_minimum=True),
+            "planet radius a", minimum=RADIUS_BOUNDS_M[0], maximum=RADIUS_BOUNDS_M[1]),
     Setting("planet", "rotation_period_days", float, 3.0, "days", "rotation period",
             "sidereal rotation period; negative: retrograde spin and orbit; inf: no rotation",
-            allow_inf=True, nonzero=True),
+            minimum=-PERIOD_BOUNDS_DAYS[1], maximum=PERIOD_BOUNDS_DAYS[1],
+            minimum_magnitude=PERIOD_BOUNDS_DAYS[0], allow_inf=True, nonzero=True),
     Setting("planet", "gravity_m_s2", float, 10.0, "m s-2", "gravity",
             "(reduced) gravity g: converts the geopotential g h to a thickness h",
-            minimum=0, exclusive_minimum=True),
+            minimum=GRAVITY_BOUNDS_M_S2[0], maximum=GRAVITY_BOUNDS_M_S2[1]),
     # --- atmosphere
     Setting("atmosphere", "mean_geopotential_m2_s2", float, 4.0e6, "m2 s-2",
             "mean geopotential gH",
@@ -283,7 +302,7 @@ SETTINGS: tuple[Setting, ...] = (
             "given (planet.rotation_period_days; needs orbital_period_days)",
             choices=("synchronous", "pseudo-synchronous", "given")),
     Setting("orbit", "orbital_period_days", float, None, "days", "orbital period",
-            "orbital period", minimum=0, exclusive_minimum=True,
+            "orbital period", minimum=PERIOD_BOUNDS_DAYS[0], maximum=PERIOD_BOUNDS_DAYS[1],
             unset="|planet.rotation_period_days|"),
     Setting("orbit", "distance_exponent", float, 0.5, "1", "distance exponent",
             "k in forcing contrast x (a / r)^k on an eccentric orbit: 0.5 as the thickness "
@@ -334,6 +353,10 @@ SETTINGS: tuple[Setting, ...] = (
     Setting("run", "restart_interval_days", float, 10.0, "days", "restart interval",
             "simulated days between restart data (whole output intervals)",
             minimum=0, exclusive_minimum=True, sweepable=False),
+    Setting("run", "keep_restart", bool, True, "", "keep restart state",
+            "keep the one latest restart state beside a completed run file (--resume with a "
+            "longer run.days then extends it bit for bit); false removes the restart data",
+            sweepable=False),
     Setting("run", "initial_fields", str, None, "", "initial fields file",
             "netCDF file with h, u, v on a lon-lat grid (a run file will do) to start from",
             unset="rest (planets) or the case's initial state"),

@@ -79,6 +79,10 @@ def _kind(value) -> str | None:
     return None
 
 
+#: Most values one axis may generate (1e8 built 3.5 GB of values before anything ran).
+MAX_AXIS_VALUES = 100_000
+
+
 def _generated(where: str, name: str, spec, log: bool) -> tuple:
     """Values of ``log_range``/``range = [start, stop, count]``."""
     shown = f"{where}: {name} = {short_repr(spec)}"
@@ -92,6 +96,8 @@ def _generated(where: str, name: str, spec, log: bool) -> tuple:
         raise ConfigError(f"{shown}: start and stop must be > 0 (log-spaced)")
     if not (isinstance(count, int) and not isinstance(count, bool)) or count < 2:
         raise ConfigError(f"{shown}: count must be an integer >= 2 (one value: values = [x])")
+    if count > MAX_AXIS_VALUES:
+        raise ConfigError(f"{shown}: count must be at most {MAX_AXIS_VALUES}")
     if start == stop:
         raise ConfigError(f"{shown}: start and stop must differ")
     if log:

@@ -12,9 +12,11 @@ import xarray as xr
 from tqdm.auto import tqdm
 
 from torrid.io.config import SECONDS_PER_DAY, ModelConfig
-from torrid.io.runfile import build_dataset, check_writable, write_atomic
+from torrid.io.runfile import build_dataset, check_writable, open_run, write_atomic
 from torrid.physics.timestepping import COURANT_LIMIT, IMEXStepper
+from torrid.io.storage import check_output_path
 from torrid.workflow.health import HealthProblem, check_step
+from torrid.workflow.limits import check_resources, check_schedule, check_steps
 from torrid.workflow.linear_run import run_linear
 from torrid.workflow.output import (RunSummary, append_snapshot, output_coordinates,
                                     planet_attrs, relative_change, run_attrs, snapshot,
@@ -26,11 +28,13 @@ from torrid.workflow.steady import SteadyCriterion, is_steady
 
 
 class RunFailedError(RuntimeError):
-    """A run stopped by a failed health check; ``dataset`` holds the output up to then."""
+    """A run stopped by a failed health check; ``dataset`` holds the output up to then (or,
+    for a run with restart data, the run file ``path`` holds it)."""
 
-    def __init__(self, message: str, dataset: xr.Dataset):
+    def __init__(self, message: str, dataset: xr.Dataset | None, path=None):
         super().__init__(message)
         self.dataset = dataset
+        self.path = path
 
 
 @dataclass
@@ -68,25 +72,46 @@ def _shorter_step(model: Model, run: _Progress, courant: float, span_s: float,
 
 
 def _restore(model: Model, store: RestartStore) -> _Progress:
-    """Rebuild the run's bookkeeping from its restart data (see :mod:`.restart`)."""
-    saved, state, outputs = store.read(model.config)
+    """Rebuild the run's bookkeeping from its restart data (see :mod:`.restart`): the state,
+    the counters and the number series so far (the maps stay in the restart's files)."""
+    saved, state, (_, series) = store.read(model.config)
     run = _Progress(state=state,
                     stepper=IMEXStepper(model.dynamics, model.linear, saved["dt"], state.shape),
                     steps_per_output=saved["steps_per_output"],
                     outputs_done=saved["outputs_done"], steps=saved["steps"],
                     times_days=list(saved["times_days"]),
                     dt_changes=[tuple(c) for c in saved["dt_changes"]])
-    for snap in outputs:
-        append_snapshot(run.series, {k: (v if v.ndim else float(v)) for k, v in snap.items()})
+    run.series.update(series)
     return run
 
 
+def _counters(run: _Progress) -> dict:
+    return {"dt": run.dt, "steps_per_output": run.steps_per_output,
+            "outputs_done": run.outputs_done, "steps": run.steps, "times_days": run.times_days,
+            "dt_changes": run.dt_changes, "outputs_written": len(run.times_days)}
+
+
 def _save_restart(model: Model, store: RestartStore, run: _Progress) -> None:
-    store.write_state(model.config, {
-        "dt": run.dt, "steps_per_output": run.steps_per_output,
-        "outputs_done": run.outputs_done, "steps": run.steps, "times_days": run.times_days,
-        "dt_changes": run.dt_changes, "outputs_written": len(run.times_days),
-    }, run.state)
+    store.write_state(model.config, _counters(run), run.state)
+
+
+def _keep(run: _Progress, values: dict, streaming: bool) -> None:
+    """Add a snapshot to the series in memory: all of it, or its numbers only when the maps
+    are streamed to the restart's files (memory then does not grow with the outputs)."""
+    append_snapshot(run.series, {k: v for k, v in values.items()
+                                 if not streaming or np.ndim(v) == 0})
+
+
+def _template(model: Model):
+    """A function (time in days, snapshot) -> one-record run dataset (the first record of a
+    restart segment)."""
+    lat, lon = output_coordinates(model)
+    static = {"surface_height": to_output_grid(model.surface_height_m)}
+
+    def template(time_days: float, values: dict) -> xr.Dataset:
+        return build_dataset([time_days], lat, lon, {k: [v] for k, v in values.items()},
+                             static, {"title": "torrid restart data (output snapshots)"})
+    return template
 
 
 def _advance_interval(model: Model, run: _Progress, interval_s: float,
@@ -123,8 +148,9 @@ def _advance_interval(model: Model, run: _Progress, interval_s: float,
 
 def integrate(model: Model, progress: bool = True, label: str = "",
               restart: RestartStore | None = None,
-              resume: bool = False) -> tuple[xr.Dataset, RunSummary]:
-    """Run ``model`` for the configured days; return the run dataset and its summary.
+              resume: bool = False) -> tuple[xr.Dataset | os.PathLike, RunSummary]:
+    """Run ``model`` for the configured days; return the run dataset and its summary (with
+    a ``restart`` store: the run file merged in it, see :meth:`RestartStore.merged`).
 
     The run length is rounded up to a whole number of output intervals. An automatic time step
     is shortened as soon as the winds push the Courant number past :data:`COURANT_LIMIT`
@@ -137,18 +163,25 @@ def integrate(model: Model, progress: bool = True, label: str = "",
     config = model.config
     interval_s = config.run.output_interval_days * SECONDS_PER_DAY
     n_outputs = max(1, math.ceil(config.run.days / config.run.output_interval_days - 1e-9))
+    fixed = config.numerics.time_step_s is not None
+    check_steps(n_outputs * model.steps_per_output,
+                "numerics.time_step_s" if fixed else "numerics.courant_number",
+                config.numerics.time_step_s if fixed else config.numerics.courant_number)
     restart_every = max(1, round(config.run.restart_interval_days
                                  / config.run.output_interval_days))
+    streaming = restart is not None
+    template = _template(model) if streaming else None
     if resume and restart is not None:
         run = _restore(model, restart)
     else:
         run = _Progress(state=model.initial_state, stepper=model.stepper,
                         steps_per_output=model.steps_per_output)
         first = snapshot(model, run.state, 0.0)
-        append_snapshot(run.series, first)
+        _keep(run, first, streaming)
         if restart is not None:
             restart.clear()
-            restart.write_output(0, first)
+            restart.append(0, 0.0, first, template)
+    start_days = run.times_days[-1] if resume else 0.0
     criterion = steady_criterion(model)
     stopping = criterion is not None and config.run.stop_at_steady_state
     status, reason = "complete", ""
@@ -163,22 +196,21 @@ def integrate(model: Model, progress: bool = True, label: str = "",
         problem, time_s = _advance_interval(model, run, interval_s, bar)
         run.times_days.append(time_s / SECONDS_PER_DAY)
         taken = snapshot(model, run.state, time_s)
-        append_snapshot(run.series, taken)
-        if restart is not None and problem is None:
-            restart.write_output(len(run.times_days) - 1, taken)
-            if run.outputs_done % restart_every == 0:
+        _keep(run, taken, streaming)
+        if restart is not None:  # a failed run's last good state too: its file shows it
+            restart.append(len(run.times_days) - 1, run.times_days[-1], taken, template)
+            if problem is None and run.outputs_done % restart_every == 0:
                 _save_restart(model, restart, run)
         if problem is None and stopping and is_steady(run.times_days, run.series, criterion):
             status, reason = "steady", f"steady state reached at day {run.times_days[-1]:g}"
             break
     if problem is not None:
         status, reason = "failed", problem.message()
-    elif restart is not None:
-        _save_restart(model, restart, run)
     wall = time.perf_counter() - start
     bar.close()
     summary = RunSummary(
         simulated_days=run.times_days[-1], wall_seconds=wall, steps=run.steps,
+        start_days=start_days,
         mass_change_relative=relative_change(run.series["mean_thickness"]),
         energy_change_relative=relative_change(run.series["total_energy"]),
     )
@@ -193,6 +225,11 @@ def integrate(model: Model, progress: bool = True, label: str = "",
         attrs.update(planet_attrs(model, run.times_days, run.series, criterion,
                                   config.run.stop_at_steady_state, steady_day))
     attrs["summary"] = summary.line(model.label, budget_note(model))
+    if streaming:  # the run file is merged from the restart's files, snapshot by snapshot
+        attrs = {"Conventions": "CF-1.10", **attrs}
+        if problem is not None:
+            raise RunFailedError(problem.message(), None, path=restart.failed(attrs))
+        return restart.merged(config, _counters(run), run.state, attrs), summary
     ds = build_dataset(run.times_days, lat, lon, run.series, static, attrs)
     if problem is not None:
         raise RunFailedError(problem.message(), ds)
@@ -217,6 +254,7 @@ def run_config(config: ModelConfig, progress: bool = True, restart: RestartStore
     """Build and integrate the model of ``config`` (see :func:`integrate`); with
     ``numerics.solver = "linear"``, solve its linear steady state instead (no time loop, no
     restart data: :mod:`torrid.workflow.linear_run`)."""
+    check_schedule(config)
     if config.numerics.solver == "linear":  # issue 13: the one dispatch on the solver
         return run_linear(config)
     return integrate(build_model(config), progress=progress, restart=restart, resume=resume)
@@ -226,18 +264,34 @@ def run_to_file(config: ModelConfig, output: str | os.PathLike, *, overwrite: bo
                 progress: bool = False, resume: bool = False) -> xr.Dataset:
     """Run ``config`` into the run file ``output``, with its restart data beside it.
 
-    An existing ``output`` is refused before any work unless ``overwrite``. A run that fails
-    its health checks still writes ``output`` (status failed, the last good state) and then
+    An existing ``output`` is refused before any work unless ``overwrite``, and so is a second
+    run on the same output while one runs (a lock in the restart folder). The snapshots are
+    streamed into the restart data, which become the run file (:mod:`.restart`); the one
+    latest restart state is kept unless ``run.keep_restart`` is false. A run that fails its
+    health checks still writes ``output`` (status failed, the last good state) and then
     raises :class:`RunFailedError`; ``resume`` continues from the restart data.
+
+    Returns the run file opened lazily (maps are read when used).
     """
+    check_output_path(output)
     check_writable(output, overwrite)
+    check_schedule(config)
+    check_resources(config, output)
     store = RestartStore(output)
-    try:
-        ds, _ = run_config(config, progress=progress, restart=store, resume=resume)
-    except RunFailedError as failure:
-        write_atomic(failure.dataset, output, overwrite=overwrite)
-        raise
-    write_atomic(ds, output, overwrite=overwrite)
-    return ds
-
-
+    with store.lock():
+        try:
+            result, _ = run_config(config, progress=progress, restart=store, resume=resume)
+        except RunFailedError as failure:
+            if failure.path is not None:
+                store.publish(failure.path, link=False)
+            else:
+                write_atomic(failure.dataset, output, overwrite=overwrite)
+            raise
+        if isinstance(result, xr.Dataset):  # a linear solve: no time loop, no restart data
+            write_atomic(result, output, overwrite=overwrite)
+            store.remove()
+            return result
+        store.publish(result, link=config.run.keep_restart)
+        if not config.run.keep_restart:
+            store.remove()
+    return open_run(output)

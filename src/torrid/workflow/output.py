@@ -26,17 +26,26 @@ class RunSummary:
     steps: int
     mass_change_relative: float
     energy_change_relative: float
+    start_days: float = 0.0  # where a resumed run continued (0 for a run from the start)
 
     @property
     def days_per_second(self) -> float:
-        """Simulated days per wall-clock second."""
-        return self.simulated_days / self.wall_seconds if self.wall_seconds > 0 else math.inf
+        """Simulated days per wall-clock second, of the days run in this session."""
+        days = self.simulated_days - self.start_days
+        return days / self.wall_seconds if self.wall_seconds > 0 else math.inf
 
     def line(self, label: str, budget: str = "relative") -> str:
         """One-line human summary; ``budget`` says what the mass and energy changes include
-        (:func:`budget_note`)."""
-        return (f"{label}: {self.simulated_days:g} days in {self.steps} steps, "
-                f"{self.wall_seconds:.1f} s ({self.days_per_second:.3g} simulated days/s); "
+        (:func:`budget_note`). A resumed run reports the days run now and their speed."""
+        now = self.simulated_days - self.start_days
+        if self.start_days and now <= 0:
+            timing = f"nothing left to run (resumed at day {self.start_days:g})"
+        elif self.start_days:
+            timing = (f"resumed at day {self.start_days:g}: {now:g} days in "
+                      f"{self.wall_seconds:.1f} s ({self.days_per_second:.3g} simulated days/s)")
+        else:
+            timing = f"{self.wall_seconds:.1f} s ({self.days_per_second:.3g} simulated days/s)"
+        return (f"{label}: {self.simulated_days:g} days in {self.steps} steps, {timing}; "
                 f"mass change {self.mass_change_relative:+.2e}, "
                 f"energy change {self.energy_change_relative:+.2e} ({budget})")
 

@@ -7,7 +7,8 @@
 2. skips every point that already has a usable file (``complete``/``steady``, or ``failed``
    unless ``retry_failed``): so rerunning after an interruption, even a kill -9, runs only
    what is left; files are renamed into place when whole, so a killed point leaves none;
-3. runs the rest in worker processes (``workers``, spawned, one thread each) or on an existing
+3. runs the rest in long-lived worker processes (``workers``, one thread each, fed points
+   one after another and owned by the sweep: :mod:`torrid.workflow.sweep_worker`) or on an existing
    dask.distributed cluster (``scheduler``), with a progress bar over the points; linear
    points (``numerics.solver = "linear"``) are not sent anywhere: the table solves them in
    this process, in milliseconds each, and they get no file;
@@ -25,20 +26,25 @@ from __future__ import annotations
 import concurrent.futures as cf
 from concurrent.futures.process import BrokenProcessPool
 import contextlib
-import multiprocessing
+import math
 import os
+import sys
 from dataclasses import dataclass, field
 from pathlib import Path
 
 from tqdm.auto import tqdm
 
+from torrid.io.atomic import try_lock
+from torrid.io.storage import storage
 from torrid.io.pointfile import (FAILED, FINISHED, STATUSES, canonical_json, read_point,
                                  write_failure_record)
 from torrid.io.sweepspec import SweepPoint, SweepSpec
 from torrid.io.sweepmanifest import manifest_data, write_manifest
 from torrid.workflow import collect
+from torrid.workflow.limits import MAX_SWEEP_POINTS, check_resources
 from torrid.workflow.sanity import warn_implausible_points
-from torrid.workflow.sweep_task import THREAD_VARIABLES, init_worker, run_point
+from torrid.workflow.sweep_task import THREAD_VARIABLES, run_point
+from torrid.workflow.sweep_worker import WorkerDied, WorkerPool
 
 LOCK_NAME = ".sweep.lock"
 
@@ -88,23 +94,19 @@ def default_workers() -> int:
 
 @contextlib.contextmanager
 def _folder_lock(folder: Path):
-    """Hold ``<folder>/.sweep.lock`` (released by the OS even on kill -9); the file is removed
+    """Hold ``<folder>/.sweep.lock`` (released by the OS even on kill -9, once the sweep and
+    every worker that inherited it have gone); yields the open lock file. The file is removed
     when the sweep ends. A lock taken on a file that another sweep removed meanwhile is
     retried on the new file, so two sweeps never both hold one."""
-    try:
-        import fcntl
-    except ImportError:  # no POSIX locks: no protection against two sweeps
-        yield
-        return
     path = folder / LOCK_NAME
     while True:
-        handle = open(path, "a")
-        try:
-            fcntl.flock(handle, fcntl.LOCK_EX | fcntl.LOCK_NB)
-        except OSError:
-            handle.close()
+        handle = try_lock(path)
+        if handle is False:  # no POSIX locks: no protection against two sweeps
+            yield None
+            return
+        if handle is None:
             raise SweepError(f"{folder}: another torrid sweep is running in this folder "
-                             "(wait for it, or stop it first)") from None
+                             "(wait for it, or stop it first)")
         try:
             same = os.fstat(handle.fileno()).st_ino == os.stat(path).st_ino
         except FileNotFoundError:
@@ -113,11 +115,10 @@ def _folder_lock(folder: Path):
             break
         handle.close()  # removed by a sweep that just ended: lock the current file
     try:
-        yield
+        yield handle
     finally:
         path.unlink(missing_ok=True)  # while still holding it (see above)
-        fcntl.flock(handle, fcntl.LOCK_UN)
-        handle.close()
+        handle.close()  # releases the lock (the workers, which shared it, have gone)
 
 
 def _remove_stale_temporaries(folder: Path) -> None:
@@ -154,9 +155,24 @@ def plan_sweep(spec: SweepSpec, folder: Path, retry_failed: bool = False,
     return Plan(points, to_run, results, linear)
 
 
+def point_count(spec: SweepSpec) -> int:
+    """Points of ``spec``, counted from its dimensions (nothing is built)."""
+    return math.prod(spec.shape)
+
+
+def check_size(spec: SweepSpec, yes: bool) -> None:
+    """Refuse a sweep of more than :data:`~torrid.workflow.limits.MAX_SWEEP_POINTS` points
+    unless ``yes`` (one line, before anything is built)."""
+    count = point_count(spec)
+    if count > MAX_SWEEP_POINTS and not yes:
+        raise SweepError(f"sweep {spec.name}: {count} points "
+                         f"({' x '.join(str(n) for n in spec.shape)}), more than "
+                         f"{MAX_SWEEP_POINTS}: pass --yes to run them (--dry-run counts them)")
+
+
 def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | None = None,
               retry_failed: bool = False, maps: bool = False,
-              progress: bool = True) -> SweepOutcome:
+              progress: bool = True, yes: bool = False) -> SweepOutcome:
     """Run every point of ``spec`` that has no usable file yet, then write the sweep table.
 
     Parameters
@@ -174,15 +190,22 @@ def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | N
         Put the final h, u, v maps into the sweep table.
     progress : bool
         Show the progress bar.
+    yes : bool
+        Run a sweep of more than :data:`~torrid.workflow.limits.MAX_SWEEP_POINTS` points.
     """
+    check_size(spec, yes)
     if workers is not None and workers < 1:
         raise SweepError(f"--workers = {workers}: must be >= 1")
     if scheduler is not None:
         _import_distributed()  # a missing optional extra is refused before anything is written
     folder = spec.folder.resolve()
-    folder.mkdir(parents=True, exist_ok=True)
+    with storage(folder, "nothing was run: choose another --folder"):
+        folder.mkdir(parents=True, exist_ok=True)
+    if not os.access(folder, os.W_OK):
+        raise SweepError(f"{folder}: permission denied: the sweep folder is not writable; "
+                         "choose another --folder")
     outcome = SweepOutcome(folder=folder)
-    with _folder_lock(folder):
+    with _folder_lock(folder) as lock:
         points = spec.points()
         write_manifest(folder, manifest_data(spec, points))
         if scheduler is None:
@@ -194,9 +217,13 @@ def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | N
                                      f"invalid configuration: {point.error}", overwrite=True)
         plan = plan_sweep(spec, folder, retry_failed, points)
         warn_implausible_points([p.config for p in plan.to_run], stacklevel=3)
+        if plan.to_run:
+            check_resources(plan.to_run[0].config, folder, points=len(plan.to_run),
+                            stacklevel=3)
         outcome.skipped = len(plan.results)
         if plan.to_run:
-            outcome.errors = _execute(plan, folder, workers, scheduler, progress)
+            outcome.errors = _execute(plan, folder, workers, scheduler, progress,
+                                      None if lock is None else lock.fileno())
         outcome.ran = len(plan.to_run) - len(outcome.errors) + len(plan.linear)
         table = collect.collect_sweep(folder, maps=maps, progress=progress)
         outcome.table_path = collect.write_table(table, collect.table_path(folder, spec.name),
@@ -211,43 +238,18 @@ def run_sweep(spec: SweepSpec, *, workers: int | None = None, scheduler: str | N
 
 
 @contextlib.contextmanager
-def _local_executor(workers: int):
-    """Spawned worker processes with one thread each (set in the environment they inherit)."""
-    saved = {name: os.environ.get(name) for name in THREAD_VARIABLES}
-    for name in THREAD_VARIABLES:
-        os.environ[name] = "1"
-    executor = cf.ProcessPoolExecutor(max_workers=workers,
-                                      mp_context=multiprocessing.get_context("spawn"),
-                                      initializer=init_worker)
+def _local_executor(workers: int, lock_fd: int | None):
+    """Long-lived worker processes with one thread each, holding the folder lock with the
+    sweep and stopping with it (:mod:`torrid.workflow.sweep_worker`)."""
+    env = dict(os.environ, **{name: "1" for name in THREAD_VARIABLES})
+    pool = WorkerPool(workers, lock_fd=lock_fd, env=env)
     try:
-        yield executor, workers
+        yield pool, workers
     except BaseException:
-        _stop_workers(executor)
+        pool.close(kill=True)  # an interrupted sweep does not wait for its points
         raise
     else:
-        executor.shutdown(wait=True)
-    finally:
-        for name, value in saved.items():
-            if value is None:
-                os.environ.pop(name, None)
-            else:
-                os.environ[name] = value
-
-
-def _stop_workers(executor: cf.ProcessPoolExecutor) -> None:
-    """Stop the worker processes now (an interrupted sweep does not wait for its points)."""
-    kill = getattr(executor, "kill_workers", None)  # Python >= 3.14
-    if kill is not None:
-        kill()
-        return
-    processes = list((getattr(executor, "_processes", None) or {}).values())
-    for process in processes:
-        with contextlib.suppress(Exception):
-            process.kill()
-    for process in processes:
-        with contextlib.suppress(Exception):
-            process.join(5)
-    executor.shutdown(wait=True, cancel_futures=True)  # the pool is broken now: returns at once
+        pool.close()
 
 
 def _import_distributed():
@@ -285,14 +287,14 @@ def _dask_executor(address: str):
 
 
 def _execute(plan: Plan, folder: Path, workers: int | None, scheduler: str | None,
-             progress: bool) -> list[str]:
+             progress: bool, lock_fd: int | None = None) -> list[str]:
     """Run ``plan.to_run``; return the unexpected errors (one line each)."""
     done = sum(r.status in FINISHED for r in plan.results.values())
     failed = sum(r.status == FAILED for r in plan.results.values())
     errors: list[str] = []
     if scheduler is None:
         workers = min(workers or default_workers(), len(plan.to_run))
-        context = _local_executor(workers)
+        context = _local_executor(workers, lock_fd)
     else:
         context = _dask_executor(scheduler)
     bar = tqdm(total=len(plan.points), initial=len(plan.results), unit="point",
@@ -310,12 +312,15 @@ def _execute(plan: Plan, folder: Path, workers: int | None, scheduler: str | Non
                 point = pending.pop(future)
                 try:
                     result = future.result()
-                except BrokenProcessPool:
+                except (BrokenProcessPool, WorkerDied):
                     raise SweepError(f"{folder}: a worker process died (out of memory? killed?) "
                                      "while running points; rerun the sweep to resume") from None
                 except Exception as err:  # noqa: BLE001 - reported, retried on the next run
-                    errors.append(f"{point.file_name}: {type(err).__name__}: "
+                    kind = getattr(err, "kind", type(err).__name__)
+                    errors.append(f"{point.file_name}: {kind}: "
                                   f"{str(err).splitlines()[0] if str(err) else ''}")
+                    tqdm.write(f"torrid: error: {errors[-1]} (the point is retried when the "
+                               "sweep is rerun)", file=sys.stderr)  # said when it happens
                     bar.set_postfix_str(f"{done} done, {failed} failed, {len(errors)} errors, "
                                         f"{min(slots, len(pending))} running", refresh=False)
                     bar.update(1)

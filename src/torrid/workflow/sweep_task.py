@@ -19,22 +19,6 @@ def limit_threads(environ=os.environ) -> None:
         environ[name] = "1"
 
 
-def init_worker() -> None:
-    """Initializer of a local worker process.
-
-    Ctrl-C goes to the sweep, which stops its workers itself; and progress bars (disabled in
-    workers) get a thread lock instead of tqdm's default inter-process semaphore, which a
-    stopped worker would leave behind (a "leaked semaphore" warning at exit).
-    """
-    import signal
-    import threading
-
-    from tqdm import tqdm
-
-    signal.signal(signal.SIGINT, signal.SIG_IGN)
-    tqdm.set_lock(threading.RLock())
-
-
 def run_point(config_json: str, path: str) -> dict:
     """Run one point and write its file at ``path``; return what happened.
 
@@ -48,8 +32,8 @@ def run_point(config_json: str, path: str) -> dict:
     Returns
     -------
     dict
-        ``path``, ``status`` (complete, steady or failed), ``reason``, ``wall_s`` (s) and
-        ``host`` (where it ran). A run that blows up is a result (status failed, its run file
+        ``path``, ``status`` (complete, steady or failed), ``reason``, ``wall_s`` (s),
+        ``host`` and ``pid`` (where it ran). A run that blows up is a result (status failed, its run file
         written by :func:`torrid.run`); an invalid configuration gets a record file. Other
         errors propagate (nothing is written, so a rerun tries the point again).
     """
@@ -102,15 +86,11 @@ def write_run(config, path: str, store) -> tuple[str, str]:
 
 
 def _remove_restart(store) -> None:
-    try:
-        store.clear()
-        store.folder.rmdir()
-    except OSError:
-        pass
+    store.remove()
 
 
 def _result(path, status, reason, start, host) -> dict:
     import time
 
     return {"path": path, "status": status, "reason": reason,
-            "wall_s": time.perf_counter() - start, "host": host}
+            "wall_s": time.perf_counter() - start, "host": host, "pid": os.getpid()}

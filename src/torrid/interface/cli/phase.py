@@ -47,7 +47,7 @@ def handle(args: argparse.Namespace) -> int:
     image = output.with_suffix(".png")
     table = output.with_suffix(".csv") if args.csv else None
     refuse_existing((output, image, table), args.overwrite)
-    ds = read_run(args.run_file)
+    ds = read_run(args.run_file, lazy=True)
     pc = phase_curve(ds, settings, source=str(args.run_file))
     write_phase_netcdf(pc, output, overwrite=args.overwrite)
     plot_phase_curve(pc, image, overwrite=args.overwrite)

@@ -73,7 +73,7 @@ def handle(args: argparse.Namespace) -> int:
         images += _solver_comparison(args.run_file, images[0], args.overwrite)
         print(f"wrote {' and '.join(map(str, images))}", file=sys.stdout)
         return 0
-    ds = read_run(args.run_file)
+    ds = read_run(args.run_file, lazy=True)
     stem = args.run_file.with_suffix("")
     if args.variable or not is_planet_run(ds):
         if args.temperature:

@@ -55,16 +55,24 @@ def add_parser(sub: argparse._SubParsersAction) -> None:
                    help="put the final h, u, v maps of every point into the table")
     p.add_argument("--dry-run", action="store_true",
                    help="check the file and list what would run, without running anything")
+    p.add_argument("--yes", action="store_true",
+                   help="run a sweep of more than 1000 points (refused without it)")
     p.add_argument("--quiet", "-q", action="store_true", help="no progress bar")
     p.set_defaults(handler=handle)
 
 
 def handle(args: argparse.Namespace) -> int:
     from torrid.io.sweepfile import load_sweep
-    from torrid.workflow.sweep import SweepError, plan_sweep, run_sweep
+    from torrid.workflow.limits import MAX_SWEEP_POINTS
+    from torrid.workflow.sweep import SweepError, plan_sweep, point_count, run_sweep
 
     spec = load_sweep(args.sweep_file, folder=args.folder)
     shape = " x ".join(f"{d.size} {d.name}" for d in spec.dimensions)
+    if args.dry_run and point_count(spec) > MAX_SWEEP_POINTS:
+        print(f"sweep {spec.name}: {point_count(spec)} points ({shape}) in {spec.folder}; "
+              f"more than {MAX_SWEEP_POINTS}, so counted only, not built (running them "
+              "needs --yes)", file=sys.stdout)
+        return 0
     if args.dry_run:
         plan = plan_sweep(spec, spec.folder, args.retry_failed)
         invalid = [p for p in plan.points if p.config is None]
@@ -77,7 +85,7 @@ def handle(args: argparse.Namespace) -> int:
         return 0
     outcome = run_sweep(spec, workers=args.workers, scheduler=args.scheduler,
                         retry_failed=args.retry_failed, maps=args.maps,
-                        progress=not args.quiet)
+                        progress=not args.quiet, yes=args.yes)
     c = outcome.counts
     print(f"sweep {spec.name}: {sum(c.values())} points ({shape}): "
           f"{c['complete'] + c['steady'] + c['linear']} done ({c['steady']} steady, "
