@@ -10,8 +10,9 @@ A run writing ``runs/x.nc`` keeps its restart data in the folder ``runs/.x.nc.re
 
 Each file is written under a temporary name and renamed, and ``state.npz`` only ever refers to
 snapshot files that are complete, so a kill -9 at any moment leaves a usable restart. The time
-stepper (ARS(4,4,3)) is a one-step method: the state at a step boundary is all of its memory,
-and the forcing depends on time only, so nothing else is needed for an exact continuation.
+stepper (an IMEX Runge-Kutta scheme) is a one-step method: the state at a step boundary is all
+of its memory, the step is saved, and the forcing depends on time only, so nothing else is
+needed for an exact continuation. ``state.npz`` also counts the tendency evaluations so far.
 """
 
 from __future__ import annotations
