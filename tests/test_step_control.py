@@ -55,9 +55,17 @@ def test_step_follows_the_winds_both_ways(model):
     dt = _step_from_winds(model, run, interval)
     assert courant_number(wave, dt, radius, n) <= target + 1e-12
     # within the margin: kept exactly
-    steady = _progress(model, 1000.0, 0.0)
-    steady.courant_rate_s = target / 1000.0 * (1 + 0.5 * (CHANGE_MARGIN - 1))
-    assert _step_from_winds(model, steady, interval) == 1000.0
+    steady = _progress(model, 960.0, 0.0)  # 90 steps per day
+    steady.courant_rate_s = target / 960.0 * (1 + 0.5 * (CHANGE_MARGIN - 1))
+    assert _step_from_winds(model, steady, interval) == 960.0
+    # a step shortened within an interval (dividing only its rest) is replaced by one that
+    # divides the output interval, even when its Courant number is on target
+    odd = interval / 86.5
+    shortened = _progress(model, odd, 0.0)
+    shortened.courant_rate_s = target / odd
+    dt = _step_from_winds(model, shortened, interval)
+    assert (interval / dt) == pytest.approx(round(interval / dt), abs=1e-9)
+    assert dt <= odd * (1 + 1e-12)
 
 
 def test_step_rule_fixed_start_keeps_the_start_step():

@@ -94,7 +94,9 @@ def _step_from_winds(model: Model, run: _Progress, interval_s: float) -> float:
                                config.planet.radius_m, config.numerics.truncation)
     target = target_courant_number(config) / max(run.courant_rate_s, wave_rate)
     target = min(target, GROWTH_LIMIT * run.dt, *model.process_limits_s)
-    if target / CHANGE_MARGIN < run.dt <= target * CHANGE_MARGIN and \
+    # a step shortened within the interval divides only its rest: it is replaced
+    divides = abs(interval_s / run.dt - round(interval_s / run.dt)) < 1e-9
+    if divides and target / CHANGE_MARGIN < run.dt <= target * CHANGE_MARGIN and \
             run.dt <= min(model.process_limits_s, default=math.inf):
         return run.dt
     steps = max(1, math.ceil(interval_s / target - 1e-9))
