@@ -32,7 +32,7 @@ def test_config_is_frozen():
     ("numerics", {"truncation": 0}, "numerics.truncation = 0: must be >= 1"),
     ("numerics", {"truncation": 4.5}, "must be an integer"),
     ("numerics", {"truncation": "42"}, "must be an integer"),
-    ("numerics", {"courant_number": 3.0}, "must be <= 1.5"),
+    ("numerics", {"courant_number": 3.0}, "must be <= 1.8"),
     ("planet", {"radius_m": -1.0}, "planet.radius_m = -1.0: must be >= 100000.0"),
     ("planet", {"rotation_period_days": 0}, "must be non-zero"),
     ("run", {"days": float("nan")}, "must be a finite number"),

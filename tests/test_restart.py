@@ -80,3 +80,24 @@ def test_kill9_leaves_no_partial_file_and_resume_completes(tmp_path):
     for s in sets:
         config = config.with_override(s)
     assert_same_data(read_run(out), torrid.run(config))
+
+
+def test_restart_bit_for_bit_with_a_step_that_changes_after_the_restart(tmp_path):
+    """Issue 14: the automatic step follows the winds (numerics.time_step_rule = follow_winds),
+    changing at output times. A run resumed at day 0.5 equals the straight run bit for bit while
+    its step changes between the restart and the end (the default planet from rest at T21
+    spins up: measured changes at days 0.5 and 1, the second after the restart)."""
+    config = torrid.ModelConfig().replace(
+        numerics={"truncation": 21},
+        run={"days": 3.0, "output_interval_days": 0.5, "restart_interval_days": 0.5,
+             "stop_at_steady_state": False})
+    straight = torrid.run(config, tmp_path / "straight.nc")
+    changes = [float(part.split(":")[0].removeprefix("day "))
+               for part in straight.attrs["time_step_changes"].split("; ")]
+    assert any(day > 0.5 for day in changes), straight.attrs["time_step_changes"]
+    torrid.run(config.replace(run={"days": 0.5}), tmp_path / "resumed.nc")
+    (tmp_path / "resumed.nc").unlink()
+    resumed = torrid.run(config, tmp_path / "resumed.nc", resume=True)
+    assert_same_data(straight, resumed)
+    for key in ("steps", "tendency_evaluations", "time_step_changes"):
+        assert resumed.attrs[key] == straight.attrs[key], key

@@ -36,15 +36,24 @@ CALENDAR = "proleptic_gregorian"
 TIME_UNITS = f"days since {EPOCH}"
 #: The numeric coordinate of simulated days beside ``time``.
 DAYS_COORDINATE = "time_days"
-#: Compression of data variables.
-COMPRESSION = {"zlib": True, "complevel": 1}
+#: Compression of data variables: zlib after the shuffle filter (byte-wise transposition,
+#: which groups the slowly varying exponent bytes of neighbouring values), level 1.
+COMPRESSION = {"zlib": True, "shuffle": True, "complevel": 1}
 
 
-def netcdf_encoding(ds: xr.Dataset) -> dict[str, dict]:
+def netcdf_encoding(ds: xr.Dataset, compression_level: int = 1,
+                    single_precision: bool = False) -> dict[str, dict]:
     """The ``encoding`` argument of ``to_netcdf`` for ``ds``: no ``_FillValue`` on any
-    coordinate, compression of data variables."""
+    coordinate, compression of data variables (zlib level ``compression_level`` with shuffle;
+    0: none) and, if ``single_precision``, float32 storage of the double-precision maps (the
+    data variables on a latitude-longitude grid)."""
     out: dict[str, dict] = {name: {"_FillValue": None} for name in ds.coords}
-    out.update({name: dict(COMPRESSION) for name in ds.data_vars})
+    for name, var in ds.data_vars.items():
+        encoding = (dict(COMPRESSION, complevel=int(compression_level)) if compression_level
+                    else {"zlib": False})
+        if single_precision and var.dtype == np.float64 and {"lat", "lon"} <= set(var.dims):
+            encoding["dtype"] = "float32"
+        out[name] = encoding
     return out
 
 

@@ -69,13 +69,23 @@ def build_dataset(times_days, latitude_deg, longitude_deg, series: dict[str, lis
     return ds
 
 
-def write_atomic(ds: xr.Dataset, path: str | os.PathLike, overwrite: bool = False) -> Path:
+def file_options(config) -> dict:
+    """A run file's compression level and precision (the ``run.output_*`` keys of a
+    ``ModelConfig``), as keyword arguments of :func:`write_atomic` and the record files."""
+    return {"compression_level": config.run.output_compression_level,
+            "single_precision": config.run.output_precision == "single"}
+
+
+def write_atomic(ds: xr.Dataset, path: str | os.PathLike, overwrite: bool = False, *,
+                 compression_level: int = 1, single_precision: bool = False) -> Path:
     """Write ``ds`` to netCDF4 at ``path`` via a temporary file in the same folder, by the CF
-    rules of :mod:`torrid.io.cf`."""
+    rules of :mod:`torrid.io.cf` (``compression_level``, ``single_precision``: see
+    :func:`torrid.io.cf.netcdf_encoding`)."""
     path = check_writable(path, overwrite)
     with atomic_path(path) as tmp:
         cf_dataset(ds).to_netcdf(tmp, engine="netcdf4", format="NETCDF4",
-                                 encoding=netcdf_encoding(ds))
+                                 encoding=netcdf_encoding(ds, compression_level,
+                                                          single_precision))
     return path
 
 

@@ -40,10 +40,11 @@ def _open(path: str | os.PathLike, mode: str = "r"):
     return handle
 
 
-def start_record_file(path: str | os.PathLike, template: xr.Dataset):
+def start_record_file(path: str | os.PathLike, template: xr.Dataset, **options):
     """Write ``template`` (its records, usually one) to ``path`` with an unlimited time
-    dimension; return the file opened for appending (a ``netCDF4.Dataset``)."""
-    encoding = netcdf_encoding(template)
+    dimension; return the file opened for appending (a ``netCDF4.Dataset``). ``options``:
+    ``compression_level`` and ``single_precision`` of :func:`netcdf_encoding`."""
+    encoding = netcdf_encoding(template, **options)
     for name, variable in template.variables.items():  # number series: chunks of many records
         if variable.dims == ("time",):
             encoding.setdefault(name, {})["chunksizes"] = (SERIES_CHUNK,)
@@ -84,9 +85,10 @@ def read_scalar_series(path: str | os.PathLike, count: int | None = None
 
 
 def merge_records(sources: list[tuple[Path, int]], path: str | os.PathLike,
-                  attrs: dict) -> None:
+                  attrs: dict, **options) -> None:
     """Copy the first ``n`` records of each ``(file, n)`` in ``sources``, in order, into a new
-    record file at ``path`` with global attributes ``attrs``; memory holds one record."""
+    record file at ``path`` with global attributes ``attrs``; memory holds one record.
+    ``options`` as in :func:`start_record_file` (the new file's compression and precision)."""
     first, _ = sources[0]
     with xr.open_dataset(first, engine="netcdf4", decode_times=False,
                          mask_and_scale=False) as ds:
@@ -95,7 +97,7 @@ def merge_records(sources: list[tuple[Path, int]], path: str | os.PathLike,
         template[name].encoding = {}
     template.attrs = {key: value for key, value in attrs.items()}
     index = 0
-    with start_record_file(path, template) as out:
+    with start_record_file(path, template, **options) as out:
         for source, count in sources:
             with _open(source) as handle:
                 handle.set_auto_mask(False)

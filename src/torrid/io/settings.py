@@ -27,6 +27,12 @@ from torrid.physics.linear_steady import INITIAL_STATES, SOLVERS
 from torrid.physics.processes.drag import COMPONENTS
 from torrid.physics.processes.relaxation import PROFILES
 
+from torrid.physics.timestepping import SCHEMES
+
+#: ``numerics.time_scheme`` (the default first) and ``numerics.time_step_rule``.
+TIME_SCHEMES = tuple(SCHEMES)
+TIME_STEP_RULES = ("follow_winds", "fixed_start")
+
 
 class ConfigError(ValueError):
     """A configuration value or key that is not allowed (the message is one line)."""
@@ -325,9 +331,18 @@ SETTINGS: tuple[Setting, ...] = (
     Setting("numerics", "time_step_s", float, None, "s", "time step",
             "time step, shortened if needed to divide the output interval",
             minimum=0, exclusive_minimum=True, unset="automatic, from courant_number"),
-    Setting("numerics", "courant_number", float, 1.0, "1", "Courant number",
+    Setting("numerics", "courant_number", float, None, "1", "Courant number",
             "advective Courant number |v|_max dt sqrt(N (N + 1)) / a of the automatic step",
-            minimum=0, exclusive_minimum=True, maximum=1.5),
+            minimum=0, exclusive_minimum=True, maximum=1.8,
+            unset="the scheme's: 1.2 (imex332), 1.0 (ars443)"),
+    Setting("numerics", "time_scheme", str, "imex332", "", "time scheme",
+            "imex332: IMEX Runge-Kutta (3,3,2), three tendency evaluations per step, second "
+            "order; ars443: ARS(4,4,3) of Ascher, Ruuth & Spiteri (1997), four evaluations, "
+            "third order (docs/time-schemes.md)", choices=TIME_SCHEMES),
+    Setting("numerics", "time_step_rule", str, "follow_winds", "", "time step rule",
+            "automatic step: follow_winds (set at each output time from the largest wind of "
+            "the interval, growing or shrinking; README) or fixed_start (set at the start "
+            "from an assumed wind, only ever shortened)", choices=TIME_STEP_RULES),
     Setting("numerics", "threads", int, 1, "1", "threads",
             "transform threads (1 is fastest below T170 on two cores)", minimum=1,
             maximum=256, sweepable=False),
@@ -342,6 +357,12 @@ SETTINGS: tuple[Setting, ...] = (
     Setting("run", "output_interval_days", float, 1.0, "days", "output interval",
             "interval between written snapshots (the initial state is written at 0)",
             minimum=0, exclusive_minimum=True),
+    Setting("run", "output_compression_level", int, 1, "1", "output compression level",
+            "zlib level of the run file's fields (with the shuffle filter); 0: uncompressed",
+            minimum=0, maximum=9, sweepable=False),
+    Setting("run", "output_precision", str, "double", "", "output precision",
+            "floating-point precision of the run file's fields: double, or single (half the "
+            "size; 7 significant digits)", choices=("double", "single"), sweepable=False),
     Setting("run", "stop_at_steady_state", bool, True, "", "stop at steady state",
             "planets: stop once the run has equilibrated (standard cases: ignored)"),
     Setting("run", "steady_tolerance", float, 1e-2, "1", "steady-state tolerance",

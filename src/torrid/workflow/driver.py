@@ -9,12 +9,12 @@ from dataclasses import dataclass, field
 
 import numpy as np
 import xarray as xr
-from tqdm.auto import tqdm
 
 from torrid.io.config import SECONDS_PER_DAY, ModelConfig
-from torrid.io.runfile import build_dataset, check_writable, open_run, write_atomic
-from torrid.physics.timestepping import COURANT_LIMIT, IMEXStepper
+from torrid.io.runfile import (build_dataset, check_writable, file_options, open_run,
+                               write_atomic)
 from torrid.io.storage import check_output_path
+from torrid.physics.timestepping import courant_number
 from torrid.workflow.health import HealthProblem, check_step
 from torrid.workflow.limits import check_resources, check_schedule, check_steps
 from torrid.workflow.linear_run import run_linear
@@ -22,8 +22,9 @@ from torrid.workflow.output import (RunSummary, append_snapshot, output_coordina
                                     planet_attrs, relative_change, run_attrs, snapshot,
                                     to_output_grid)
 from torrid.workflow.output import budget_note
+from torrid.workflow.progress import run_progress
 from torrid.workflow.restart import RestartStore
-from torrid.workflow.setup import Model, build_model
+from torrid.workflow.setup import Model, build_model, target_courant_number
 from torrid.workflow.steady import SteadyCriterion, is_steady
 
 
@@ -46,6 +47,8 @@ class _Progress:
     steps_per_output: int
     outputs_done: int = 0  # output intervals completed
     steps: int = 0
+    evaluations: int = 0  # explicit tendency evaluations
+    courant_rate_s: float = 0.0  # largest Courant number / dt of the interval so far (s^-1)
     times_days: list = field(default_factory=lambda: [0.0])
     series: dict = field(default_factory=dict)
     dt_changes: list = field(default_factory=list)
@@ -55,20 +58,54 @@ class _Progress:
         return self.stepper.dt
 
 
+#: The automatic step (``numerics.time_step_rule = "follow_winds"``) grows by at most
+#: GROWTH_LIMIT per change, and is kept while it is within CHANGE_MARGIN of the target (so
+#: small fluctuations of the largest wind do not change it at every output time).
+GROWTH_LIMIT = 1.5
+CHANGE_MARGIN = 1.1
+
+
+def _automatic(model: Model) -> bool:
+    return model.config.numerics.time_step_s is None
+
+
 def _shorter_step(model: Model, run: _Progress, courant: float, span_s: float,
                   now_s: float) -> bool:
-    """Shorten an automatic step whose Courant number has passed COURANT_LIMIT.
+    """Shorten an automatic step whose Courant number has passed the scheme's courant_limit.
 
-    The new step brings the Courant number back to ``numerics.courant_number`` and divides
-    ``span_s`` (the rest of the output interval) exactly. Returns True if it changed.
+    The new step brings the Courant number back to the target (``numerics.courant_number``)
+    and divides ``span_s`` (the rest of the output interval) exactly. Returns True if it changed.
     """
-    if model.config.numerics.time_step_s is not None or courant <= COURANT_LIMIT:
+    if not _automatic(model) or courant <= model.scheme.courant_limit:
         return False
-    target = run.dt * model.config.numerics.courant_number / courant
+    target = run.dt * target_courant_number(model.config) / courant
     steps = max(1, math.ceil(span_s / target - 1e-9))
-    run.stepper = IMEXStepper(model.dynamics, model.linear, span_s / steps, run.state.shape)
+    run.stepper = model.new_stepper(span_s / steps)
     run.dt_changes.append((now_s / SECONDS_PER_DAY, run.dt))
     return True
+
+
+def _step_from_winds(model: Model, run: _Progress, interval_s: float) -> float:
+    """The step (s) for the next output interval under ``time_step_rule = "follow_winds"``.
+
+    From the largest Courant number per second seen during the interval (the largest wind),
+    but at least that of the gravity-wave speed sqrt(Phi_mean): the step giving the target
+    Courant number, grown by at most GROWTH_LIMIT, within the processes' limits, dividing the
+    output interval. The step is kept while the interval's Courant number stayed within
+    CHANGE_MARGIN above the target and the winds allow less than CHANGE_MARGIN more.
+    """
+    config = model.config
+    wave_rate = courant_number(math.sqrt(model.mean_geopotential), 1.0,
+                               config.planet.radius_m, config.numerics.truncation)
+    target = target_courant_number(config) / max(run.courant_rate_s, wave_rate)
+    target = min(target, GROWTH_LIMIT * run.dt, *model.process_limits_s)
+    # a step shortened within the interval divides only its rest: it is replaced
+    divides = abs(interval_s / run.dt - round(interval_s / run.dt)) < 1e-9
+    if divides and target / CHANGE_MARGIN < run.dt <= target * CHANGE_MARGIN and \
+            run.dt <= min(model.process_limits_s, default=math.inf):
+        return run.dt
+    steps = max(1, math.ceil(interval_s / target - 1e-9))
+    return interval_s / steps
 
 
 def _restore(model: Model, store: RestartStore) -> _Progress:
@@ -76,9 +113,11 @@ def _restore(model: Model, store: RestartStore) -> _Progress:
     the counters and the number series so far (the maps stay in the restart's files)."""
     saved, state, (_, series) = store.read(model.config)
     run = _Progress(state=state,
-                    stepper=IMEXStepper(model.dynamics, model.linear, saved["dt"], state.shape),
+                    stepper=model.new_stepper(saved["dt"]),
                     steps_per_output=saved["steps_per_output"],
                     outputs_done=saved["outputs_done"], steps=saved["steps"],
+                    evaluations=saved.get("evaluations",
+                                          saved["steps"] * model.scheme.evaluations),
                     times_days=list(saved["times_days"]),
                     dt_changes=[tuple(c) for c in saved["dt_changes"]])
     run.series.update(series)
@@ -87,7 +126,8 @@ def _restore(model: Model, store: RestartStore) -> _Progress:
 
 def _counters(run: _Progress) -> dict:
     return {"dt": run.dt, "steps_per_output": run.steps_per_output,
-            "outputs_done": run.outputs_done, "steps": run.steps, "times_days": run.times_days,
+            "outputs_done": run.outputs_done, "steps": run.steps,
+            "evaluations": run.evaluations, "times_days": run.times_days,
             "dt_changes": run.dt_changes, "outputs_written": len(run.times_days)}
 
 
@@ -126,8 +166,10 @@ def _advance_interval(model: Model, run: _Progress, interval_s: float,
         time_s = segment_s + done * run.dt
         new_state = run.stepper.step(run.state, time_s)
         run.steps += 1
+        run.evaluations += run.stepper.evaluations
         problem, courant = check_step(model, new_state, (time_s + run.dt) / SECONDS_PER_DAY,
                                       run.dt)
+        run.courant_rate_s = max(run.courant_rate_s, courant / run.dt)
         if problem is not None:
             return problem, time_s  # run.state is still the last good state
         run.state = new_state
@@ -139,10 +181,16 @@ def _advance_interval(model: Model, run: _Progress, interval_s: float,
             segment_s, done, changed = now_s, 0, True
             steps = round(rest_s / run.dt)
     run.outputs_done += 1
-    if changed:  # the step was shortened: the next intervals use it, dividing them exactly
+    if _automatic(model) and model.config.numerics.time_step_rule == "follow_winds":
+        dt = _step_from_winds(model, run, interval_s)
+        if dt != run.dt:
+            run.stepper = model.new_stepper(dt)
+            run.dt_changes.append((run.outputs_done * interval_s / SECONDS_PER_DAY, dt))
+        run.steps_per_output = round(interval_s / run.dt)
+    elif changed:  # the step was shortened: the next intervals use it, dividing them exactly
         run.steps_per_output = max(1, math.ceil(interval_s / run.dt - 1e-9))
-        run.stepper = IMEXStepper(model.dynamics, model.linear,
-                                  interval_s / run.steps_per_output, run.state.shape)
+        run.stepper = model.new_stepper(interval_s / run.steps_per_output)
+    run.courant_rate_s = 0.0
     return None, run.outputs_done * interval_s
 
 
@@ -153,8 +201,10 @@ def integrate(model: Model, progress: bool = True, label: str = "",
     a ``restart`` store: the run file merged in it, see :meth:`RestartStore.merged`).
 
     The run length is rounded up to a whole number of output intervals. An automatic time step
-    is shortened as soon as the winds push the Courant number past :data:`COURANT_LIMIT`
-    (the step then divides the rest of the output interval, and the following intervals).
+    is shortened as soon as the winds push the Courant number past the scheme's courant_limit
+    (the step then divides the rest of the output interval); with ``numerics.time_step_rule =
+    "follow_winds"`` it is set again at each output time from the interval's largest wind
+    (:func:`_step_from_winds`), else the shortened step is kept for the following intervals.
     With a ``restart`` store, restart data are written every ``run.restart_interval_days``
     and at the end; ``resume`` continues from them (bit for bit equal to a straight run).
     Raises :class:`RunFailedError` (with the dataset up to the last good state) if a step
@@ -185,11 +235,9 @@ def integrate(model: Model, progress: bool = True, label: str = "",
     criterion = steady_criterion(model)
     stopping = criterion is not None and config.run.stop_at_steady_state
     status, reason = "complete", ""
-    bar = tqdm(total=round(n_outputs * config.run.output_interval_days, 6), unit="day",
-               initial=round(run.times_days[-1], 6),
-               disable=not progress, desc=label or model.label, leave=False, dynamic_ncols=True,
-               bar_format="{desc}: {percentage:3.0f}%|{bar}| {n:.2f}/{total:g} days "
-                          "[{elapsed}<{remaining}, {rate_fmt}]")
+    bar = run_progress(round(n_outputs * config.run.output_interval_days, 6),
+                       round(run.times_days[-1], 6), label or model.label,
+                       config.run.output_interval_days, progress)
     start = time.perf_counter()
     problem = None
     while run.outputs_done < n_outputs and problem is None:
@@ -211,6 +259,7 @@ def integrate(model: Model, progress: bool = True, label: str = "",
     summary = RunSummary(
         simulated_days=run.times_days[-1], wall_seconds=wall, steps=run.steps,
         start_days=start_days,
+        tendency_evaluations=run.evaluations,
         mass_change_relative=relative_change(run.series["mean_thickness"]),
         energy_change_relative=relative_change(run.series["total_energy"]),
     )
@@ -228,7 +277,8 @@ def integrate(model: Model, progress: bool = True, label: str = "",
     if streaming:  # the run file is merged from the restart's files, snapshot by snapshot
         attrs = {"Conventions": "CF-1.10", **attrs}
         if problem is not None:
-            raise RunFailedError(problem.message(), None, path=restart.failed(attrs))
+            raise RunFailedError(problem.message(), None, path=restart.failed(
+                attrs, **file_options(config)))
         return restart.merged(config, _counters(run), run.state, attrs), summary
     ds = build_dataset(run.times_days, lat, lon, run.series, static, attrs)
     if problem is not None:
@@ -285,13 +335,15 @@ def run_to_file(config: ModelConfig, output: str | os.PathLike, *, overwrite: bo
             if failure.path is not None:
                 store.publish(failure.path, link=False)
             else:
-                write_atomic(failure.dataset, output, overwrite=overwrite)
+                write_atomic(failure.dataset, output, overwrite=overwrite,
+                             **file_options(config))
             raise
         if isinstance(result, xr.Dataset):  # a linear solve: no time loop, no restart data
-            write_atomic(result, output, overwrite=overwrite)
+            write_atomic(result, output, overwrite=overwrite, **file_options(config))
             store.remove()
             return result
         store.publish(result, link=config.run.keep_restart)
         if not config.run.keep_restart:
             store.remove()
     return open_run(output)
+

@@ -12,7 +12,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from torrid.physics.timestepping import STABILITY_LIMIT, courant_number
+from torrid.physics.timestepping import courant_number
 
 
 @dataclass(frozen=True)
@@ -25,6 +25,7 @@ class HealthProblem:
     lon_deg: float
     value: float
     automatic_step: bool = False
+    limit: float = 1.57  # the scheme's stability limit
 
     def message(self) -> str:
         """One line: what, where, when, likely cause and fix."""
@@ -40,12 +41,12 @@ class HealthProblem:
                     "numerics.hyperdiffusion_days) or a shorter numerics.time_step_s")
         if self.automatic_step:  # the step was following the winds: they ran away
             return (f"run blew up: advective Courant number {self.value:.3g} above the "
-                    f"scheme's limit {STABILITY_LIMIT} {where}, faster than the automatic step "
+                    f"scheme's limit {self.limit} {where}, faster than the automatic step "
                     "could follow; likely cause: growing grid-scale noise; fix: more "
                     "hyperdiffusion (a smaller numerics.hyperdiffusion_days), a smaller "
                     "atmosphere.forcing_contrast or a smaller numerics.courant_number")
         return (f"run failed: advective Courant number {self.value:.3g} above the scheme's "
-                f"limit {STABILITY_LIMIT} {where}; likely cause: the time step is too long "
+                f"limit {self.limit} {where}; likely cause: the time step is too long "
                 "for the winds; fix: a shorter numerics.time_step_s (or leave it automatic)")
 
 
@@ -72,8 +73,9 @@ def check_step(model, state: np.ndarray, day: float,
     index = int(np.argmax(speed2))
     courant = courant_number(float(np.sqrt(speed2.flat[index])), dt,
                              model.config.planet.radius_m, grid.truncation)
-    if not courant <= STABILITY_LIMIT:
+    limit = model.scheme.stability_limit
+    if not courant <= limit:
         automatic = model.config.numerics.time_step_s is None
         return HealthProblem("courant", day, *_location(grid, index), courant,
-                             automatic), courant
+                             automatic, limit), courant
     return None, courant

@@ -27,6 +27,7 @@ class RunSummary:
     mass_change_relative: float
     energy_change_relative: float
     start_days: float = 0.0  # where a resumed run continued (0 for a run from the start)
+    tendency_evaluations: int = 0  # explicit tendency evaluations of the time scheme
 
     @property
     def days_per_second(self) -> float:
@@ -190,7 +191,10 @@ def run_attrs(model: Model, summary: RunSummary) -> dict:
         "truncation": f"T{grid.truncation}",
         "grid": f"Gauss-Legendre, {grid.nlat} latitudes x {grid.nlon} longitudes",
         "time_step_s": model.dt,
-        "time_scheme": "IMEX Runge-Kutta ARS(4,4,3), gravity waves and damping implicit",
+        "time_scheme": f"{model.scheme.title} ({model.scheme.name}), gravity waves and "
+                       "damping implicit",
+        "time_step_rule": (model.config.numerics.time_step_rule
+                           if model.config.numerics.time_step_s is None else "given"),
         "processes": ", ".join(p.name for p in model.processes) or "none",
     }
     for process in model.processes:
@@ -201,6 +205,7 @@ def run_attrs(model: Model, summary: RunSummary) -> dict:
         "radius_m": model.config.planet.radius_m,
         "rotation_rate_s": model.rotation_rate_s,
         "steps": summary.steps,
+        "tendency_evaluations": int(summary.tendency_evaluations),
         "wall_time_s": round(summary.wall_seconds, 3),
     })
     return out

@@ -21,9 +21,10 @@ bit for bit; ``run.keep_restart = false`` removes the folder at the end instead.
 
 Every file is written under a temporary name and renamed, or is a segment that ``state.npz``
 refers to only once it is closed, so a kill -9 at any moment leaves a usable restart (a segment
-open at the kill is not referenced and is removed on resume). The time stepper (ARS(4,4,3)) is
-a one-step method: the state at a step boundary is all of its memory, and the forcing depends
-on time only, so nothing else is needed for an exact continuation.
+open at the kill is not referenced and is removed on resume). The time stepper (an IMEX
+Runge-Kutta scheme) is a one-step method: the state at a step boundary is all of its memory,
+the step is saved, and the forcing depends on time only, so nothing else is needed for an
+exact continuation. ``state.npz`` also counts the tendency evaluations so far.
 """
 
 from __future__ import annotations
@@ -38,6 +39,7 @@ import numpy as np
 
 from torrid.io.atomic import atomic_path, try_lock
 from torrid.io.config import ConfigError, ModelConfig
+from torrid.io.runfile import file_options
 from torrid.io.runstream import (append_record, merge_records, read_scalar_series,
                                  start_record_file)
 from torrid.io.storage import storage
@@ -189,15 +191,17 @@ class RestartStore:
         total = sum(count for _, count in self.history)
         path = self.folder / f"run-{total:06d}.nc"
         with atomic_path(path) as tmp:
-            merge_records([(self.folder / n, c) for n, c in self.history], tmp, attrs)
+            merge_records([(self.folder / n, c) for n, c in self.history], tmp, attrs,
+                          **file_options(config))
         self.history = [(path.name, total)]
         self.write_state(config, progress, state)
         return path
 
     @_guarded
-    def failed(self, attrs: dict) -> Path:
+    def failed(self, attrs: dict, **options) -> Path:
         """A failed run: the saved history and the open segment (up to the last good state)
-        merged into a run file for the output; the restart state is left as it was."""
+        merged into a run file for the output (``options``: its compression and precision,
+        :func:`torrid.io.runfile.file_options`); the restart state is left as it was."""
         name = self._segment[0] if self._segment else None
         sources = list(self.history)
         if self._segment is not None:
@@ -206,7 +210,7 @@ class RestartStore:
             self._segment = None
         path = self.folder / "failed.nc"
         with atomic_path(path) as tmp:
-            merge_records([(self.folder / n, c) for n, c in sources], tmp, attrs)
+            merge_records([(self.folder / n, c) for n, c in sources], tmp, attrs, **options)
         if name is not None:
             (self.folder / name).unlink(missing_ok=True)
         return path

@@ -21,7 +21,7 @@ from torrid.physics.processes import CASE, PLANET, Process, ProcessContext, buil
 from torrid.physics.regrid import FitNotConvergedError, fit_state
 from torrid.physics.state import DIVERGENCE, GEOPOTENTIAL, VORTICITY
 from torrid.physics.tendencies import Dynamics
-from torrid.physics.timestepping import IMEXStepper, automatic_time_step
+from torrid.physics.timestepping import SCHEMES, IMEXStepper, automatic_time_step
 from torrid.physics.transforms import Transforms
 from torrid.workflow.linear_state import solve_linear
 
@@ -45,11 +45,22 @@ class Model:
     rotation_rate_s: float
     steps_per_output: int
     orbit: Orbit | None = None
+    process_limits_s: tuple[float, ...] = ()  # the processes' longest stable steps (s)
 
     @property
     def dt(self) -> float:
         """Time step (s)."""
         return self.stepper.dt
+
+    @property
+    def scheme(self):
+        """The time scheme (:class:`torrid.physics.timestepping.Scheme`)."""
+        return self.stepper.scheme
+
+    def new_stepper(self, dt: float) -> IMEXStepper:
+        """A stepper of the run's scheme with step ``dt`` (s)."""
+        return IMEXStepper(self.dynamics, self.linear, dt, self.initial_state.shape,
+                           self.scheme)
 
     @property
     def is_planet(self) -> bool:
@@ -100,10 +111,17 @@ def choose_time_step(config: ModelConfig, max_speed_m_s: float,
         dt = n.time_step_s
     else:
         dt = automatic_time_step(max(max_speed_m_s, 1e-3), config.planet.radius_m,
-                                 n.truncation, n.courant_number)
+                                 n.truncation, target_courant_number(config))
     dt = min((dt, *process_limits_s))
     steps = max(1, math.ceil(interval_s / dt - 1e-9))
     return interval_s / steps, steps
+
+
+def target_courant_number(config: ModelConfig) -> float:
+    """The automatic step's Courant number: ``numerics.courant_number``, else the scheme's."""
+    n = config.numerics
+    return n.courant_number if n.courant_number is not None else \
+        SCHEMES[n.time_scheme].courant_number
 
 
 def rotation_rate(config: ModelConfig) -> tuple[float, float]:
@@ -215,8 +233,10 @@ def build_model(config: ModelConfig) -> Model:
         state, start = _linear_start(config, transforms, processes, dynamics, linear, start)
     limits = tuple(limit for p in processes if (limit := p.max_time_step_s()) is not None)
     dt, steps_per_output = choose_time_step(config, start.reference_speed_m_s, limits)
-    stepper = IMEXStepper(dynamics, linear, dt, state.shape)
+    stepper = IMEXStepper(dynamics, linear, dt, state.shape,
+                          SCHEMES[config.numerics.time_scheme])
     return Model(config=config, case=case, grid=grid, transforms=transforms,
+                 process_limits_s=limits,
                  processes=processes, dynamics=dynamics, linear=linear, stepper=stepper,
                  initial_state=state, surface_height_m=start.surface_height_m, gravity_m_s2=g,
                  mean_geopotential=start.mean_geopotential, rotation_rate_s=start.rotation_rate_s,
