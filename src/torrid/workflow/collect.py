@@ -161,8 +161,8 @@ def _solve_linear_points(results: dict, base: dict, maps: bool, progress: bool) 
             and (config := _point_config(base, point)) is not None
             and config.numerics.solver == "linear"]
     solved = {}
-    for index, config in tqdm(todo, unit="point", desc="linear points", disable=not progress,
-                              leave=False, dynamic_ncols=True):
+    for index, config in tqdm(todo, unit="point", desc="linear points", leave=False,
+                              disable=not progress or not todo, dynamic_ncols=True):
         point, _ = results[index]
         try:
             attrs, fields = solve_point(config, maps)
