@@ -84,7 +84,7 @@ def _final_maps(path: Path) -> dict | None:
     with xr.open_dataset(path, engine="netcdf4") as ds:
         if not all(name in ds for name in MAP_VARIABLES):
             return None
-        names = list(MAP_VARIABLES) + [n for n in (SUBSTELLAR,) if n in ds]
+        names = [*MAP_VARIABLES, *([SUBSTELLAR] if SUBSTELLAR in ds else [])]
         last = ds[names].isel(time=-1).load()
     return {"lat": last["lat"].values, "lon": last["lon"].values,
             SUBSTELLAR: float(last[SUBSTELLAR]) if SUBSTELLAR in last else 0.0,

@@ -213,7 +213,7 @@ def integrate(model: Model, progress: bool = True, label: str = "",
     config = model.config
     interval_s = config.run.output_interval_days * SECONDS_PER_DAY
     n_outputs = max(1, math.ceil(config.run.days / config.run.output_interval_days - 1e-9))
-    fixed = config.numerics.time_step_s is not None
+    fixed = not _automatic(model)
     check_steps(n_outputs * model.steps_per_output,
                 "numerics.time_step_s" if fixed else "numerics.courant_number",
                 config.numerics.time_step_s if fixed else config.numerics.courant_number)
@@ -221,14 +221,14 @@ def integrate(model: Model, progress: bool = True, label: str = "",
                                  / config.run.output_interval_days))
     streaming = restart is not None
     template = _template(model) if streaming else None
-    if resume and restart is not None:
+    if resume and streaming:
         run = _restore(model, restart)
     else:
         run = _Progress(state=model.initial_state, stepper=model.stepper,
                         steps_per_output=model.steps_per_output)
         first = snapshot(model, run.state, 0.0)
         _keep(run, first, streaming)
-        if restart is not None:
+        if streaming:
             restart.clear()
             restart.append(0, 0.0, first, template)
     start_days = run.times_days[-1] if resume else 0.0
@@ -245,7 +245,7 @@ def integrate(model: Model, progress: bool = True, label: str = "",
         run.times_days.append(time_s / SECONDS_PER_DAY)
         taken = snapshot(model, run.state, time_s)
         _keep(run, taken, streaming)
-        if restart is not None:  # a failed run's last good state too: its file shows it
+        if streaming:  # a failed run's last good state too: its file shows it
             restart.append(len(run.times_days) - 1, run.times_days[-1], taken, template)
             if problem is None and run.outputs_done % restart_every == 0:
                 _save_restart(model, restart, run)
@@ -263,8 +263,6 @@ def integrate(model: Model, progress: bool = True, label: str = "",
         mass_change_relative=relative_change(run.series["mean_thickness"]),
         energy_change_relative=relative_change(run.series["total_energy"]),
     )
-    lat, lon = output_coordinates(model)
-    static = {"surface_height": to_output_grid(model.surface_height_m)}
     attrs = run_attrs(model, summary)
     attrs.update(run_status=status, run_status_reason=reason or "ran the configured days",
                  time_step_changes="; ".join(f"day {d:g}: {dt:.6g} s" for d, dt in run.dt_changes)
@@ -277,9 +275,11 @@ def integrate(model: Model, progress: bool = True, label: str = "",
     if streaming:  # the run file is merged from the restart's files, snapshot by snapshot
         attrs = {"Conventions": "CF-1.10", **attrs}
         if problem is not None:
-            raise RunFailedError(problem.message(), None, path=restart.failed(
-                attrs, **file_options(config)))
+            raise RunFailedError(problem.message(), None,
+                                 path=restart.failed(config, attrs))
         return restart.merged(config, _counters(run), run.state, attrs), summary
+    lat, lon = output_coordinates(model)
+    static = {"surface_height": to_output_grid(model.surface_height_m)}
     ds = build_dataset(run.times_days, lat, lon, run.series, static, attrs)
     if problem is not None:
         raise RunFailedError(problem.message(), ds)

@@ -198,10 +198,10 @@ class RestartStore:
         return path
 
     @_guarded
-    def failed(self, attrs: dict, **options) -> Path:
+    def failed(self, config: ModelConfig, attrs: dict) -> Path:
         """A failed run: the saved history and the open segment (up to the last good state)
-        merged into a run file for the output (``options``: its compression and precision,
-        :func:`torrid.io.runfile.file_options`); the restart state is left as it was."""
+        merged into a run file for the output (global ``attrs``, compression and precision of
+        ``config``); the restart state is left as it was."""
         name = self._segment[0] if self._segment else None
         sources = list(self.history)
         if self._segment is not None:
@@ -210,7 +210,8 @@ class RestartStore:
             self._segment = None
         path = self.folder / "failed.nc"
         with atomic_path(path) as tmp:
-            merge_records([(self.folder / n, c) for n, c in sources], tmp, attrs, **options)
+            merge_records([(self.folder / n, c) for n, c in sources], tmp, attrs,
+                          **file_options(config))
         if name is not None:
             (self.folder / name).unlink(missing_ok=True)
         return path
