@@ -8,8 +8,40 @@ from __future__ import annotations
 
 import contextlib
 import os
+import signal
+import threading
 import tempfile
 from pathlib import Path
+
+
+#: The signals that stop a command (SIGTERM, SIGHUP): held back while a library writes.
+_STOP_SIGNALS = {getattr(signal, name) for name in ("SIGTERM", "SIGHUP") if hasattr(signal, name)}
+
+
+@contextlib.contextmanager
+def signals_held():
+    """Hold SIGTERM and SIGHUP back for the block; one that came meanwhile is handed to its
+    handler at the block's end. xarray writes netCDF under a global lock that is not
+    reentrant: a stop signal's exception raised inside ``to_netcdf`` reaches the writer's own
+    clean-up, which takes that lock again and waits for ever (seen: about one SIGTERM of
+    ``torrid run`` in seven). Only the main thread may set handlers; elsewhere nothing is held."""
+    if threading.current_thread() is not threading.main_thread() or not _STOP_SIGNALS:
+        yield
+        return
+    pending: list[int] = []
+    saved = {sig: signal.signal(sig, lambda signum, frame: pending.append(signum))
+             for sig in _STOP_SIGNALS}
+    try:
+        yield
+    finally:
+        for sig, handler in saved.items():
+            signal.signal(sig, handler)
+        if pending:
+            handler = saved[pending[0]]
+            if callable(handler):
+                handler(pending[0], None)
+            elif handler != signal.SIG_IGN:
+                os.kill(os.getpid(), pending[0])
 
 
 @contextlib.contextmanager

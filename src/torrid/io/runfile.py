@@ -12,7 +12,7 @@ from pathlib import Path
 import numpy as np
 import xarray as xr
 
-from torrid.io.atomic import atomic_path
+from torrid.io.atomic import atomic_path, signals_held
 from torrid.io.cf import DAYS_COORDINATE, cf_dataset, netcdf_encoding
 from torrid.io.variables import COORDINATES, VARIABLES
 
@@ -82,7 +82,7 @@ def write_atomic(ds: xr.Dataset, path: str | os.PathLike, overwrite: bool = Fals
     rules of :mod:`torrid.io.cf` (``compression_level``, ``single_precision``: see
     :func:`torrid.io.cf.netcdf_encoding`)."""
     path = check_writable(path, overwrite)
-    with atomic_path(path) as tmp:
+    with atomic_path(path) as tmp, signals_held():
         cf_dataset(ds).to_netcdf(tmp, engine="netcdf4", format="NETCDF4",
                                  encoding=netcdf_encoding(ds, compression_level,
                                                           single_precision))

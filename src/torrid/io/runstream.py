@@ -16,6 +16,7 @@ from pathlib import Path
 import numpy as np
 import xarray as xr
 
+from torrid.io.atomic import signals_held
 from torrid.io.cf import DAYS_COORDINATE, cf_dataset, netcdf_encoding
 
 
@@ -48,8 +49,9 @@ def start_record_file(path: str | os.PathLike, template: xr.Dataset, **options):
     for name, variable in template.variables.items():  # number series: chunks of many records
         if variable.dims == ("time",):
             encoding.setdefault(name, {})["chunksizes"] = (SERIES_CHUNK,)
-    cf_dataset(template).to_netcdf(path, engine="netcdf4", format="NETCDF4",
-                                   encoding=encoding, unlimited_dims=["time"])
+    with signals_held():
+        cf_dataset(template).to_netcdf(path, engine="netcdf4", format="NETCDF4",
+                                       encoding=encoding, unlimited_dims=["time"])
     return _open(path, "a")
 
 
