@@ -9,8 +9,14 @@ cluster), and as a fresh cluster plus one sweep (cold, start-up included). Effic
 rate(2) / (2 rate(1)), from the medians and from the fastest runs (the least disturbed on a
 shared machine).
 
+The local sweeps run in this process, which stays warm between them: its workers are forked
+(:mod:`torrid.workflow.worker_process`), and the one-off warm-up is paid by the warm-up sweep.
+``--cold`` also times ``torrid sweep`` in a fresh interpreter each time, its imports and
+warm-up included: what a user of the command line waits for.
+
     python benchmarks/bench_sweep.py
     python benchmarks/bench_sweep.py --points 8 --days 20 --repeats 3
+    python benchmarks/bench_sweep.py --truncation 21 --days 10 --no-dask --cold
 """
 
 from __future__ import annotations
@@ -18,6 +24,8 @@ from __future__ import annotations
 import argparse
 import os
 import statistics
+import subprocess
+import sys
 import tempfile
 import time
 from pathlib import Path
@@ -48,6 +56,22 @@ def timed_sweep(args, **where) -> float:
     return wall
 
 
+def cold_sweep(args, workers: int) -> float:
+    """``torrid sweep`` of the same points in a fresh interpreter (wall time, s)."""
+    with tempfile.TemporaryDirectory(prefix="bench-sweep-") as tmp:
+        sweep = Path(tmp) / "bench.toml"
+        sweep.write_text(
+            f"[numerics]\ntruncation = {args.truncation}\ntime_step_s = 500.0\n"
+            f"[run]\ndays = {args.days}\nstop_at_steady_state = false\n"
+            "output_interval_days = 1.0\n[sweep]\nname = \"bench\"\n[[sweep.axis]]\n"
+            "key = \"atmosphere.radiative_timescale_days\"\n"
+            f"log_range = [0.1, 10.0, {args.points}]\n")
+        start = time.perf_counter()
+        subprocess.run([sys.executable, "-m", "torrid", "sweep", str(sweep), "--folder",
+                        str(Path(tmp) / "bench"), "--workers", str(workers), "-q"], check=True)
+        return time.perf_counter() - start
+
+
 def load() -> str:
     return "load average " + ", ".join(f"{x:.2f}" for x in os.getloadavg())
 
@@ -70,6 +94,8 @@ def main() -> None:
     parser.add_argument("--truncation", type=int, default=42)
     parser.add_argument("--repeats", type=int, default=3)
     parser.add_argument("--no-dask", action="store_true", help="skip the dask measurements")
+    parser.add_argument("--cold", action="store_true",
+                        help="also time `torrid sweep` in a fresh interpreter")
     args = parser.parse_args()
     print(f"sweep of {args.points} points, T{args.truncation}, {args.days:g} days each, "
           f"{args.repeats} repeats; {os.cpu_count()} cores; {load()}")
@@ -83,7 +109,7 @@ def main() -> None:
                                            dashboard_address=":0")
         timed_sweep(args, scheduler=cluster.scheduler_address)  # warm the workers
     walls = {"local, 1 worker": [], "local, 2 workers": [], "dask, 2 warm workers": [],
-             "dask, cold cluster": []}
+             "dask, cold cluster": [], "command, 1 worker": [], "command, 2 workers": []}
     try:
         for _ in range(args.repeats):  # interleaved, so load changes hit every variant
             walls["local, 1 worker"].append(timed_sweep(args, workers=1))
@@ -92,6 +118,9 @@ def main() -> None:
                 walls["dask, 2 warm workers"].append(
                     timed_sweep(args, scheduler=cluster.scheduler_address))
                 walls["dask, cold cluster"].append(cold_dask_sweep(args))
+            if args.cold:
+                walls["command, 1 worker"].append(cold_sweep(args, 1))
+                walls["command, 2 workers"].append(cold_sweep(args, 2))
     finally:
         if cluster is not None:
             cluster.close()
@@ -104,6 +133,9 @@ def main() -> None:
     for label, t in (("medians", median), ("fastest runs", best)):
         efficiency = t["local, 1 worker"] / (2 * t["local, 2 workers"])
         line = f"{label:12s}: parallel efficiency on 2 workers {efficiency:.2f}"
+        if "command, 1 worker" in t:
+            line += (f" (command line, fresh interpreter: "
+                     f"{t['command, 1 worker'] / (2 * t['command, 2 workers']):.2f})")
         if "dask, 2 warm workers" in t:
             warm = t["dask, 2 warm workers"] / t["local, 2 workers"] - 1
             cold = t["dask, cold cluster"] / t["local, 2 workers"] - 1

@@ -18,6 +18,7 @@ import pytest
 
 from torrid.io.sweepfile import load_sweep
 from torrid.workflow.sweep import LOCK_NAME, SweepError, _folder_lock
+from torrid.workflow import worker_process
 from torrid.workflow.sweep_worker import WorkerPool
 
 pytestmark = pytest.mark.skipif(not Path("/proc/self/stat").exists(), reason="needs /proc")
@@ -122,7 +123,8 @@ def test_kill9_of_the_sweep_stops_its_workers_and_no_point_runs_twice(tmp_path):
         pass
 
 
-def test_the_folder_lock_covers_live_workers(tmp_path):
+@pytest.mark.parametrize("start", ["fork", "spawn"])
+def test_the_folder_lock_covers_live_workers(tmp_path, start):
     """The lock belongs to the open lock file, which every worker inherits: with the sweep's
     own handle closed (as by a kill -9, which leaves the lock file), live workers hold it."""
     folder = tmp_path / "locked"
@@ -131,7 +133,7 @@ def test_the_folder_lock_covers_live_workers(tmp_path):
 
     lock = open(folder / LOCK_NAME, "a")  # taken as _folder_lock takes it
     fcntl.flock(lock, fcntl.LOCK_EX | fcntl.LOCK_NB)
-    pool = WorkerPool(1, lock_fd=lock.fileno())
+    pool = WorkerPool(1, lock_fd=lock.fileno(), start=start)
     lock.close()  # the sweep's own handle gone, as after a kill -9
     try:
         with pytest.raises(SweepError, match="another torrid sweep is running"):
@@ -143,9 +145,10 @@ def test_the_folder_lock_covers_live_workers(tmp_path):
         pass
 
 
-def test_workers_live_across_points(tmp_path):
+@pytest.mark.parametrize("start", ["fork", "spawn"])
+def test_workers_live_across_points(tmp_path, start):
     """One process per worker for the whole sweep (issue 14 builds on it): four points on
-    two workers run in those two processes."""
+    two workers run in those two processes, forked or spawned, with the same results."""
     from torrid.io.pointfile import canonical_json
     from torrid.workflow.sweep_task import run_point
 
@@ -154,7 +157,7 @@ def test_workers_live_across_points(tmp_path):
                      .replace("output_interval_days = 1.0", "output_interval_days = 0.25"))
     spec = load_sweep(sweep, folder=tmp_path / "short")
     spec.folder.mkdir()
-    pool = WorkerPool(2)
+    pool = WorkerPool(2, start=start)
     try:
         futures = [pool.submit(run_point, canonical_json(p.config.to_dict()),
                                str(spec.folder / p.file_name)) for p in spec.points()]
@@ -163,3 +166,27 @@ def test_workers_live_across_points(tmp_path):
         pool.close()
     assert [r["status"] for r in results] == ["complete"] * 4
     assert {r["pid"] for r in results} <= set(pool.pids)
+    assert pool.start == start
+    assert worker_process._PARENT_ENDS == set()  # a closed pool leaves no pipe behind
+    import xarray as xr
+
+    with xr.open_dataset(results[-1]["path"]) as ds:
+        assert ds.attrs["run_status"] == "complete" and ds.sizes["time"] == 3
+
+
+def test_a_sweep_forks_only_from_a_single_thread():
+    """Forking beside another thread could leave a lock held forever in the worker: the
+    pool then spawns (a notebook kernel runs several threads)."""
+    import threading
+
+    stop = threading.Event()
+    other = threading.Thread(target=stop.wait)
+    other.start()
+    try:
+        assert not worker_process.can_fork()
+        pool = WorkerPool(1)
+        pool.close(kill=True)
+        assert pool.start == "spawn"
+    finally:
+        stop.set()
+        other.join()

@@ -11,6 +11,7 @@ netCDF4 into the same variables, so they get the same encoding (compression, typ
 from __future__ import annotations
 
 import os
+import shutil
 from pathlib import Path
 
 import numpy as np
@@ -86,33 +87,60 @@ def read_scalar_series(path: str | os.PathLike, count: int | None = None
     return times, series
 
 
+#: Encoding options the record files of a run's restart data are written with (those of
+#: :func:`start_record_file` without options).
+RECORD_FILE_OPTIONS = {"compression_level": 1, "single_precision": False}
+
+
 def merge_records(sources: list[tuple[Path, int]], path: str | os.PathLike,
                   attrs: dict, **options) -> None:
     """Copy the first ``n`` records of each ``(file, n)`` in ``sources``, in order, into a new
     record file at ``path`` with global attributes ``attrs``; memory holds one record.
-    ``options`` as in :func:`start_record_file` (the new file's compression and precision)."""
-    first, _ = sources[0]
+    ``options`` as in :func:`start_record_file` (the new file's compression and precision).
+
+    When the first file has exactly its ``n`` records and ``options`` are
+    :data:`RECORD_FILE_OPTIONS` (what the restart's files have), it is copied byte for byte
+    and given ``attrs`` (with :func:`~torrid.io.cf.cf_dataset`'s Conventions and history):
+    the same data as a record-by-record copy, without re-encoding them (a run with one
+    restart segment, as a short sweep point has, is then copied, not rewritten).
+    """
+    first, count = sources[0]
+    if dict(RECORD_FILE_OPTIONS, **options) == RECORD_FILE_OPTIONS \
+            and record_count(first) == count:
+        shutil.copyfile(first, path)
+        with signals_held(), _open(path, "a") as out:
+            for name in out.ncattrs():
+                out.delncattr(name)
+            for name, value in cf_dataset(xr.Dataset(attrs=attrs)).attrs.items():
+                out.setncattr(name, value)
+            _copy_records(sources[1:], out, count)
+        return
     with xr.open_dataset(first, engine="netcdf4", decode_times=False,
                          mask_and_scale=False) as ds:
         template = ds.isel(time=[0]).load()
     for name in template.variables:
         template[name].encoding = {}
     template.attrs = {key: value for key, value in attrs.items()}
-    index = 0
     with start_record_file(path, template, **options) as out:
-        for source, count in sources:
-            with _open(source) as handle:
-                handle.set_auto_mask(False)
-                series = [name for name, var in handle.variables.items()
-                          if var.dimensions == ("time",)]
-                maps = [name for name, var in handle.variables.items()
-                        if var.dimensions[:1] == ("time",) and name not in series]
-                for name in series:  # numbers: all records at once
-                    out.variables[name][index:index + count] = handle.variables[name][:count]
-                for record in range(count):  # maps: one record in memory
-                    for name in maps:
-                        out.variables[name][index + record] = handle.variables[name][record]
-                index += count
+        _copy_records(sources, out, 0)
+
+
+def _copy_records(sources: list[tuple[Path, int]], out, index: int) -> None:
+    """Append the first ``n`` records of each ``(file, n)`` to the open record file ``out``
+    from its record ``index`` on: number series at once, maps one record at a time."""
+    for source, count in sources:
+        with _open(source) as handle:
+            handle.set_auto_mask(False)
+            series = [name for name, var in handle.variables.items()
+                      if var.dimensions == ("time",)]
+            maps = [name for name, var in handle.variables.items()
+                    if var.dimensions[:1] == ("time",) and name not in series]
+            for name in series:
+                out.variables[name][index:index + count] = handle.variables[name][:count]
+            for record in range(count):
+                for name in maps:
+                    out.variables[name][index + record] = handle.variables[name][record]
+            index += count
 
 
 def is_time_dependent(template: xr.Dataset, name: str) -> bool:

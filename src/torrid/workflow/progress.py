@@ -67,13 +67,26 @@ class LogProgress:
         self._line(time.perf_counter())
 
 
+class Silent:
+    """The reporter of ``--quiet``: nothing written, and (unlike a disabled tqdm) no tqdm
+    monitor thread started, which would keep a sweep from forking its workers."""
+
+    def update(self, days: float) -> None:
+        """Nothing."""
+
+    def close(self) -> None:
+        """Nothing."""
+
+
 def run_progress(total_days: float, initial_days: float, label: str, interval_days: float,
                  enabled: bool):
-    """A progress reporter of a run: tqdm on a terminal, :class:`LogProgress` otherwise, a
-    silent tqdm if not ``enabled``."""
-    if enabled and not sys.stderr.isatty():
+    """A progress reporter of a run: tqdm on a terminal, :class:`LogProgress` otherwise,
+    :class:`Silent` if not ``enabled``."""
+    if not enabled:
+        return Silent()
+    if not sys.stderr.isatty():
         return LogProgress(total_days, initial_days, label, interval_days)
-    return tqdm(total=total_days, unit="day", initial=initial_days, disable=not enabled,
+    return tqdm(total=total_days, unit="day", initial=initial_days,
                 desc=label, leave=False, dynamic_ncols=True,
                 bar_format="{desc}: {percentage:3.0f}%|{bar}| {n:.2f}/{total:g} days "
                            "[{elapsed}<{remaining}, {rate_fmt}]")

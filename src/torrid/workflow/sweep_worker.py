@@ -1,22 +1,22 @@
 """Long-lived local sweep workers, owned by the sweep that started them.
 
-Each worker is one ``python -m torrid.workflow.sweep_worker`` process that stays alive across
-points: it imports the model once, then takes points from the sweep (one JSON line each on
-its standard input) and answers with one JSON line per point (on a private copy of its
-standard output; its own fd 1 points at standard error, so nothing the model prints can mix
-into the answers). The per-point cost is then the run alone, not a process start, the imports
-and the numba cache load.
+Each worker is one process that stays alive across points: forked from the warm sweep, or
+a spawned ``python -m torrid.workflow.sweep_worker`` that imports the model once
+(:mod:`torrid.workflow.worker_process` says which and why). It takes points from the sweep
+(one JSON line each on a pipe) and answers with one JSON line per point on another; its own
+fd 1 points at standard error, so nothing the model prints can mix into the answers. The
+per-point cost is then the run alone, not a process start, the imports and the numba cache
+load.
 
 The sweep owns its workers:
 
-* **the parent's death is noticed at once.** A watcher thread reads the worker's standard
-  input; when the sweep dies by any means, even kill -9, the pipe's write end closes, the
+* **the parent's death is noticed at once.** A watcher thread reads the worker's input; when the sweep dies by any means, even kill -9, the pipe's write end closes, the
   read returns end-of-file and the worker exits immediately (``os._exit``), whatever point it
   is running. A check of ``os.getppid()`` every :data:`PARENT_POLL_S` seconds backs this up.
   The point is left as a kill leaves it: its restart data are whole (written atomically), so
   the next sweep continues it bit for bit.
-* **the folder lock covers live workers.** The sweep hands its lock file's descriptor to every
-  worker (``pass_fds``): an ``flock`` belongs to the open file, so the folder stays locked
+* **the folder lock covers live workers.** The sweep's lock file descriptor is inherited by
+  every worker (by the fork, or ``pass_fds``): an ``flock`` belongs to the open file, so the folder stays locked
   until the last worker has gone, and a sweep started at once cannot run a point twice.
 * **stopping the sweep stops them.** :meth:`WorkerPool.close` kills the workers; SIGINT is
   ignored in workers (the sweep stops them itself).
@@ -35,6 +35,8 @@ import threading
 import time
 from collections import deque
 
+from torrid.workflow import worker_process
+
 #: Seconds between checks that the parent is still alive (besides the pipe's end-of-file).
 PARENT_POLL_S = 0.5
 
@@ -51,9 +53,9 @@ class WorkerDied(RuntimeError):
     """A worker process ended while running a point (killed, out of memory)."""
 
 
-def _watch_parent(tasks: queue.Queue) -> None:
-    """Read points from standard input; exit the process when the parent is gone."""
-    for line in iter(sys.stdin.buffer.readline, b""):
+def _watch_parent(tasks_in, tasks: queue.Queue) -> None:
+    """Read points from the sweep; exit the process when the sweep is gone."""
+    for line in iter(tasks_in.readline, b""):
         tasks.put(line)
     os._exit(0)  # end-of-file: the sweep closed the pipe or died (even by kill -9)
 
@@ -65,16 +67,17 @@ def _poll_parent(parent: int) -> None:
             os._exit(0)
 
 
-def serve() -> None:
-    """The worker's main loop (see the module docstring)."""
+def serve(tasks_in, answers) -> None:
+    """The worker's main loop (see the module docstring): points as JSON lines from the
+    binary stream ``tasks_in``, answers as JSON lines to the text stream ``answers``."""
     from torrid.workflow.sweep_task import limit_threads
 
     limit_threads()
     signal.signal(signal.SIGINT, signal.SIG_IGN)
-    answers = os.fdopen(os.dup(1), "w", buffering=1, encoding="utf-8")
+    sys.stdout.flush()
     os.dup2(2, 1)  # anything printed by the model goes to standard error
     tasks: queue.Queue = queue.Queue()
-    threading.Thread(target=_watch_parent, args=(tasks,), daemon=True).start()
+    threading.Thread(target=_watch_parent, args=(tasks_in, tasks), daemon=True).start()
     threading.Thread(target=_poll_parent, args=(os.getppid(),), daemon=True).start()
 
     from tqdm import tqdm
@@ -93,15 +96,22 @@ def serve() -> None:
         answers.write(json.dumps(answer) + "\n")
 
 
-class _Worker:
-    """One worker process and the thread that feeds it points from the pool's queue."""
+def serve_spawned() -> None:
+    """A spawned worker: points on standard input, answers on a private copy of fd 1."""
+    serve(sys.stdin.buffer, os.fdopen(os.dup(1), "w", buffering=1, encoding="utf-8"))
 
-    def __init__(self, pool: "WorkerPool", pass_fds: tuple[int, ...], env: dict):
-        self.process = subprocess.Popen(
-            [sys.executable, "-m", "torrid.workflow.sweep_worker"], stdin=subprocess.PIPE,
-            stdout=subprocess.PIPE, pass_fds=pass_fds, env=env, close_fds=True)
+
+class _Worker:
+    """One worker process and the thread that feeds it points from the pool's queue
+    (started by :meth:`start`, once every worker of the pool has its process)."""
+
+    def __init__(self, pool: "WorkerPool", process):
+        self.process = process
         self.pool = pool
         self.thread = threading.Thread(target=self._feed, daemon=True)
+
+    def start(self) -> None:
+        """Feed this worker."""
         self.thread.start()
 
     def _answer(self) -> dict | None:
@@ -144,15 +154,29 @@ class WorkerPool:
 
     ``lock_fd`` is inherited by every worker (the sweep folder's lock, see the module
     docstring). Workers start with one thread each (``env`` has the thread limits).
+    ``start`` is how: ``"fork"`` from this process once warmed, ``"spawn"`` a fresh
+    interpreter each, or ``"auto"``: fork where that is safe
+    (:func:`torrid.workflow.worker_process.can_fork`), else spawn. :attr:`start` says which.
     """
 
-    def __init__(self, workers: int, lock_fd: int | None = None, env: dict | None = None):
+    def __init__(self, workers: int, lock_fd: int | None = None, env: dict | None = None,
+                 start: str = "auto"):
+        if start not in ("auto", "fork", "spawn"):
+            raise ValueError(f"start = {start!r}: must be 'auto', 'fork' or 'spawn'")
         self._jobs: deque = deque()
         self._lock = threading.Condition()
         self._closed = False
         env = dict(os.environ if env is None else env)
-        fds = () if lock_fd is None else (lock_fd,)
-        self._workers = [_Worker(self, fds, env) for _ in range(workers)]
+        self.start = start = worker_process.choose_start(start)
+        if start == "fork":
+            worker_process.warm_up()
+            processes = [worker_process.ForkedProcess(env, serve) for _ in range(workers)]
+        else:
+            fds = () if lock_fd is None else (lock_fd,)
+            processes = [worker_process.spawn(fds, env) for _ in range(workers)]
+        self._workers = [_Worker(self, process) for process in processes]
+        for worker in self._workers:
+            worker.start()
 
     @property
     def pids(self) -> list[int]:
@@ -214,7 +238,9 @@ class WorkerPool:
                     stream.close()
                 except OSError:
                     pass
+            if hasattr(worker.process, "release"):
+                worker.process.release()
 
 
 if __name__ == "__main__":
-    serve()
+    serve_spawned()
