@@ -38,24 +38,41 @@ import tempfile
 import time
 from pathlib import Path
 
+from torrid.io.settings import toml_value
 from torrid.io.sweepfile import parse_sweep
 from torrid.workflow.sweep import run_sweep
 
 
-def sweep_spec(folder: Path, points: int, days: float, truncation: int):
-    """A tau_rad sweep of ``points`` equal-cost points."""
-    return parse_sweep({
-        "numerics": {"truncation": truncation, "time_step_s": 500.0},
-        "run": {"days": days, "stop_at_steady_state": False, "output_interval_days": 1.0},
+def sweep_data(args) -> dict:
+    """The benchmark's sweep: a tau_rad axis of ``args.points`` equal-cost points."""
+    return {
+        "numerics": {"truncation": args.truncation, "time_step_s": 500.0},
+        "run": {"days": args.days, "stop_at_steady_state": False, "output_interval_days": 1.0},
         "sweep": {"name": "bench", "axis": [
             {"key": "atmosphere.radiative_timescale_days",
-             "log_range": [0.1, 10.0, points]}]},
-    }, "bench.toml", folder=folder)
+             "log_range": [0.1, 10.0, args.points]}]},
+    }
+
+
+def sweep_toml(data: dict) -> str:
+    """``data`` (tables of values, lists of tables) as the text of a sweep file."""
+    lines = []
+    for section, table in data.items():
+        lines.append(f"[{section}]")
+        nested = {key: rows for key, rows in table.items()
+                  if isinstance(rows, list) and rows and isinstance(rows[0], dict)}
+        lines += [f"{key} = {toml_value(value)}" for key, value in table.items()
+                  if key not in nested]
+        for key, rows in nested.items():
+            for row in rows:
+                lines.append(f"[[{section}.{key}]]")
+                lines += [f"{k} = {toml_value(v)}" for k, v in row.items()]
+    return "\n".join(lines) + "\n"
 
 
 def timed_sweep(args, **where) -> float:
     with tempfile.TemporaryDirectory(prefix="bench-sweep-") as tmp:
-        spec = sweep_spec(Path(tmp) / "bench", args.points, args.days, args.truncation)
+        spec = parse_sweep(sweep_data(args), "bench.toml", folder=Path(tmp) / "bench")
         start = time.perf_counter()
         outcome = run_sweep(spec, progress=False, **where)
         wall = time.perf_counter() - start
@@ -80,9 +97,7 @@ for _ in range(int(sys.argv[2])):
 def loops_wall(args, processes: int) -> float:
     """Wall time (s) of the points' time loops split over ``processes`` processes that start
     together once each is warm (one thread each)."""
-    config = {"numerics": {"truncation": args.truncation, "time_step_s": 500.0},
-              "run": {"days": args.days, "stop_at_steady_state": False,
-                      "output_interval_days": 1.0}}
+    config = {k: v for k, v in sweep_data(args).items() if k != "sweep"}
     env = dict(os.environ, NUMBA_NUM_THREADS="1", OMP_NUM_THREADS="1",
                OPENBLAS_NUM_THREADS="1")
     children = [subprocess.Popen([sys.executable, "-c", LOOPS, json.dumps(config),
@@ -103,12 +118,7 @@ def cold_sweep(args, workers: int) -> float:
     """``torrid sweep`` of the same points in a fresh interpreter (wall time, s)."""
     with tempfile.TemporaryDirectory(prefix="bench-sweep-") as tmp:
         sweep = Path(tmp) / "bench.toml"
-        sweep.write_text(
-            f"[numerics]\ntruncation = {args.truncation}\ntime_step_s = 500.0\n"
-            f"[run]\ndays = {args.days}\nstop_at_steady_state = false\n"
-            "output_interval_days = 1.0\n[sweep]\nname = \"bench\"\n[[sweep.axis]]\n"
-            "key = \"atmosphere.radiative_timescale_days\"\n"
-            f"log_range = [0.1, 10.0, {args.points}]\n")
+        sweep.write_text(sweep_toml(sweep_data(args)))
         start = time.perf_counter()
         subprocess.run([sys.executable, "-m", "torrid", "sweep", str(sweep), "--folder",
                         str(Path(tmp) / "bench"), "--workers", str(workers), "-q"], check=True)
