@@ -46,6 +46,7 @@ from torrid.io.variables import SWEEP_MAPS, SWEEP_VARIABLES, final_value_row
 from torrid.meta import __version__
 from torrid.physics.processes.relaxation import equilibrium_extremes
 from torrid.workflow.linear_run import solve_point
+from torrid.workflow.progress import bar_options
 
 MAP_VARIABLES = SWEEP_MAPS
 #: The run-file diagnostic that says where the star was at a map's time.
@@ -162,7 +163,8 @@ def _solve_linear_points(results: dict, base: dict, maps: bool, progress: bool) 
             and config.numerics.solver == "linear"]
     solved = {}
     for index, config in tqdm(todo, unit="point", desc="linear points", leave=False,
-                              disable=not progress or not todo, dynamic_ncols=True):
+                              disable=not progress or not todo, dynamic_ncols=True,
+                              **bar_options()):
         point, _ = results[index]
         try:
             attrs, fields = solve_point(config, maps)

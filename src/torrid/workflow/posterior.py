@@ -22,6 +22,7 @@ import numpy as np
 from torrid.io.observation import SamplerSettings
 from torrid.workflow import fit_checks
 from torrid.workflow.fit_model import single_thread
+from torrid.workflow.progress import bar_options
 
 #: Percentiles of the summary: 95.45 % low, 68.27 % low, median, 68.27 % high, 95.45 % high.
 PERCENTILES = (2.275, 15.865, 50.0, 84.135, 97.725)
@@ -113,7 +114,8 @@ def sample(model, start: np.ndarray, steps: int, settings: SamplerSettings | Non
     sampler.random_state = np.random.RandomState(settings.seed).get_state()
     with single_thread():
         sampler.run_mcmc(p0, steps, progress=progress,
-                         progress_kwargs={"desc": "posterior", "unit": "step"} if progress
+                         progress_kwargs={"desc": "posterior", "unit": "step", **bar_options()}
+                         if progress
                          else None)
     burn = int(settings.burn_in * steps)
     chain = sampler.get_chain(discard=burn, flat=True)

@@ -4,7 +4,8 @@ On a terminal, standard error gets tqdm's bar. When standard error is not a term
 run > log 2>&1``, a batch job), a bar would write hundreds of carriage-return updates into the
 log; instead :class:`LogProgress` writes one plain line when an output interval completes, at
 most one every :data:`LOG_SECONDS` of wall time, and a last line at the end. ``--quiet``
-(``progress=False``) writes nothing.
+(``progress=False``) writes nothing. Other bars (sweep points, posterior steps) take
+:func:`bar_options`, which in a log lets tqdm redraw at most once every :data:`LOG_SECONDS`.
 """
 
 from __future__ import annotations
@@ -16,6 +17,13 @@ from tqdm.auto import tqdm
 
 #: Shortest wall time (s) between two lines of :class:`LogProgress`.
 LOG_SECONDS = 10.0
+
+
+def bar_options() -> dict:
+    """Keyword arguments for a tqdm bar: none on a terminal; when standard error is not a
+    terminal, at most one redraw every :data:`LOG_SECONDS` (a log gets a few updates, not
+    ten per second)."""
+    return {} if sys.stderr.isatty() else {"mininterval": LOG_SECONDS}
 
 
 class LogProgress:

@@ -42,6 +42,7 @@ from torrid.io.sweepspec import SweepPoint, SweepSpec
 from torrid.io.sweepmanifest import manifest_data, write_manifest
 from torrid.workflow import collect
 from torrid.workflow.limits import MAX_SWEEP_POINTS, check_resources
+from torrid.workflow.progress import bar_options
 from torrid.workflow.sanity import warn_implausible_points
 from torrid.workflow.sweep_task import THREAD_VARIABLES, run_point
 from torrid.workflow.sweep_worker import WorkerDied, WorkerPool
@@ -300,13 +301,14 @@ def _execute(plan: Plan, folder: Path, workers: int | None, scheduler: str | Non
     bar = tqdm(total=len(plan.points), initial=len(plan.results), unit="point",
                disable=not progress, smoothing=0, dynamic_ncols=True, desc="sweep",
                bar_format="{desc}: {percentage:3.0f}%|{bar}| {n}/{total} points "
-                          "[{elapsed}<{remaining}{postfix}]")
+                          "[{elapsed}<{remaining}{postfix}]", **bar_options())
+    ticking = sys.stderr.isatty()  # the bar's clock ticks each second on a terminal only
     with context as (executor, slots), bar:
         pending = {executor.submit(run_point, canonical_json(p.config.to_dict()),
                                    str(folder / p.file_name)): p for p in plan.to_run}
         while pending:
             bar.set_postfix_str(f"{done} done, {failed} failed, "
-                                f"{min(slots, len(pending))} running", refresh=True)
+                                f"{min(slots, len(pending))} running", refresh=ticking)
             finished, _ = cf.wait(pending, timeout=1.0, return_when=cf.FIRST_COMPLETED)
             for future in finished:
                 point = pending.pop(future)
